@@ -1,0 +1,78 @@
+# tagwright - arc-flash hazard labels and energized work permit drafts from study results.
+#
+#   make            build build/tagwright
+#   make demo       install missing Debian packages, build, write the demo outputs to out/
+#   make check      unit tests (cmocka), end-to-end tests, and the same under ASan+UBSan
+#   make install    PREFIX=/usr/local DESTDIR=
+#
+# Every src/*.c except main.c goes into build/libtagwright.a; every tests/unit/test_*.c is one
+# cmocka test program linked against it. New modules and tests need no change here.
+
+CC      ?= cc
+PREFIX  ?= /usr/local
+BUILD   ?= build
+PKGS     = libcjson libqrencode libcrypto
+CSTD     = -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE
+WARN     = -Wall -Wextra -Werror -Wshadow -Wstrict-prototypes -Wformat=2
+OPT     ?= -O2 -g
+DATADIR  = $(PREFIX)/share/tagwright
+CPPFLAGS += -Iinclude -DTW_DATADIR='"$(DATADIR)"' $(shell pkg-config --cflags $(PKGS) 2>/dev/null)
+CFLAGS  ?=
+CFLAGS  += $(CSTD) $(WARN) $(OPT) $(EXTRA_CFLAGS)
+LDLIBS  += -lhpdf -lcsv $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lcjson -lqrencode -lcrypto) -lpng -lz -lm -lpthread
+LDFLAGS += $(EXTRA_LDFLAGS)
+
+LIB_SRC  = $(filter-out src/main.c,$(wildcard src/*.c))
+LIB_OBJ  = $(LIB_SRC:src/%.c=$(BUILD)/obj/%.o)
+TEST_SRC = $(wildcard tests/unit/test_*.c)
+TESTS    = $(TEST_SRC:tests/unit/%.c=$(BUILD)/tests/%)
+BIN      = $(BUILD)/tagwright
+
+.PHONY: all demo check unit e2e asan-check deps install clean fuzz valgrind bench
+all: $(BIN)
+
+$(BUILD)/obj/%.o: src/%.c $(wildcard include/*.h) | $(BUILD)/obj
+	$(CC) $(CPPFLAGS) $(CFLAGS) -c -o $@ $<
+
+$(BUILD)/libtagwright.a: $(LIB_OBJ)
+	rm -f $@ && ar rcs $@ $^
+
+$(BIN): $(BUILD)/obj/main.o $(BUILD)/libtagwright.a
+	$(CC) $(CFLAGS) $(LDFLAGS) -o $@ $^ $(LDLIBS)
+
+$(BUILD)/tests/%: tests/unit/%.c tests/unit/tw_test.h $(BUILD)/libtagwright.a | $(BUILD)/tests
+	$(CC) $(CPPFLAGS) -Itests/unit $(CFLAGS) $(LDFLAGS) -o $@ $< $(BUILD)/libtagwright.a $(LDLIBS) -lcmocka
+
+$(BUILD)/obj $(BUILD)/tests:
+	mkdir -p $@
+
+deps:
+	scripts/install-deps
+
+demo: deps
+	$(MAKE) all
+	scripts/demo
+
+unit: $(TESTS)
+	@set -e; for t in $(TESTS); do echo "== $$t"; TW_SOURCE_DIR=$(CURDIR) $$t; done
+
+e2e: $(BIN)
+	TW_BIN=$(CURDIR)/$(BIN) tests/e2e/run
+
+# The same unit and end-to-end tests built with AddressSanitizer and UndefinedBehaviorSanitizer.
+asan-check:
+	$(MAKE) BUILD=build-asan OPT="-O1 -g -fno-omit-frame-pointer" \
+	  EXTRA_CFLAGS="-fsanitize=address,undefined -fno-sanitize-recover=all" \
+	  EXTRA_LDFLAGS="-fsanitize=address,undefined" unit e2e
+
+check: unit e2e asan-check
+	@echo "make check: all test suites passed"
+
+install: $(BIN)
+	install -d $(DESTDIR)$(PREFIX)/bin $(DESTDIR)$(DATADIR)/layouts $(DESTDIR)$(PREFIX)/share/man/man1
+	install -m 755 $(BIN) $(DESTDIR)$(PREFIX)/bin/tagwright
+	install -m 644 layouts/*.json $(DESTDIR)$(DATADIR)/layouts/
+	install -m 644 docs/tagwright.1 $(DESTDIR)$(PREFIX)/share/man/man1/tagwright.1
+
+clean:
+	rm -rf build build-asan build-fuzz out

@@ -1,0 +1,63 @@
+/*
+ * tw_diag.h - findings about input data: one error convention for every module.
+ *
+ * A finding names where it came from (file, and a line for CSV or a JSON path for JSON), the
+ * equipment it concerns, the field, and a message that says what was expected. Modules add
+ * findings to a tw_diags list and return a status; only the command layer prints them.
+ *
+ * Ownership: the list owns copies of every string given to tw_diag_add(). tw_diags_free()
+ * accepts a zeroed or already-freed list. If memory runs out, the finding is counted but its
+ * text is dropped (the counts stay right, so a run still fails closed).
+ */
+#ifndef TW_DIAG_H
+#define TW_DIAG_H
+
+#include <stddef.h>
+#include <stdio.h>
+
+typedef enum { TW_WARNING = 0, TW_ERROR = 1 } tw_severity;
+
+/* Where a value came from. line is 1-based, 0 when unknown; path is a JSON path or NULL. */
+typedef struct {
+    const char *file;
+    long line;
+    const char *path;
+} tw_source;
+
+typedef struct {
+    tw_severity severity;
+    char *file;
+    long line;
+    char *path;
+    char *equipment_id;
+    char *field;
+    char *message;
+} tw_diag;
+
+typedef struct {
+    tw_diag *items;
+    size_t count, cap;
+    size_t errors, warnings;
+} tw_diags;
+
+/* Start an empty list. */
+void tw_diags_init(tw_diags *d);
+
+/* Free every finding; the list is left empty and reusable. */
+void tw_diags_free(tw_diags *d);
+
+/* Add a finding. src, equipment_id and field may be NULL. */
+void tw_diag_add(tw_diags *d, tw_severity sev, const tw_source *src, const char *equipment_id,
+                 const char *field, const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 6, 7)))
+#endif
+    ;
+
+/* Print one finding as "FILE:LINE: error|warning: EQUIPMENT_ID: field: message". */
+void tw_diag_print(const tw_diag *g, FILE *out);
+
+/* Print every finding in the order added. */
+void tw_diags_print(const tw_diags *d, FILE *out);
+
+#endif

@@ -1,0 +1,92 @@
+/* diag.c - the list of findings (see tw_diag.h). */
+#include "tw_diag.h"
+
+#include <stdarg.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "tw_util.h"
+
+void tw_diags_init(tw_diags *d)
+{
+    memset(d, 0, sizeof *d);
+}
+
+void tw_diags_free(tw_diags *d)
+{
+    for (size_t i = 0; i < d->count; i++) {
+        tw_diag *g = &d->items[i];
+        free(g->file);
+        free(g->path);
+        free(g->equipment_id);
+        free(g->field);
+        free(g->message);
+    }
+    free(d->items);
+    tw_diags_init(d);
+}
+
+static tw_diag *diag_slot(tw_diags *d)
+{
+    if (d->count == d->cap) {
+        size_t cap = d->cap ? d->cap * 2 : 16;
+        tw_diag *items = realloc(d->items, cap * sizeof *items);
+        if (!items)
+            return NULL;
+        d->items = items;
+        d->cap = cap;
+    }
+    tw_diag *g = &d->items[d->count++];
+    memset(g, 0, sizeof *g);
+    return g;
+}
+
+void tw_diag_add(tw_diags *d, tw_severity sev, const tw_source *src, const char *equipment_id,
+                 const char *field, const char *fmt, ...)
+{
+    if (sev == TW_ERROR)
+        d->errors++;
+    else
+        d->warnings++;
+    tw_diag *g = diag_slot(d);
+    if (!g)
+        return;
+    g->severity = sev;
+    if (src) {
+        g->file = tw_strdup(src->file);
+        g->line = src->line;
+        g->path = tw_strdup(src->path);
+    }
+    g->equipment_id = tw_strdup(equipment_id);
+    g->field = tw_strdup(field);
+    va_list ap;
+    va_start(ap, fmt);
+    int n = vsnprintf(NULL, 0, fmt, ap);
+    va_end(ap);
+    if (n >= 0 && (g->message = malloc((size_t)n + 1)) != NULL) {
+        va_start(ap, fmt);
+        vsnprintf(g->message, (size_t)n + 1, fmt, ap);
+        va_end(ap);
+    }
+}
+
+void tw_diag_print(const tw_diag *g, FILE *out)
+{
+    fputs(g->file ? g->file : "-", out);
+    if (g->path)
+        fprintf(out, ":%s", g->path);
+    else if (g->line > 0)
+        fprintf(out, ":%ld", g->line);
+    fprintf(out, ": %s: ", g->severity == TW_ERROR ? "error" : "warning");
+    if (g->equipment_id)
+        fprintf(out, "%s: ", g->equipment_id);
+    if (g->field)
+        fprintf(out, "%s: ", g->field);
+    fprintf(out, "%s\n", g->message ? g->message : "(out of memory)");
+}
+
+void tw_diags_print(const tw_diags *d, FILE *out)
+{
+    for (size_t i = 0; i < d->count; i++)
+        tw_diag_print(&d->items[i], out);
+}

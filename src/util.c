@@ -1,0 +1,144 @@
+/* util.c - allocation, strings, strict numbers and whole-file reads (see tw_util.h). */
+#include "tw_util.h"
+
+#include <ctype.h>
+#include <errno.h>
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+
+char *tw_strdup(const char *s)
+{
+    return s ? tw_strndup(s, strlen(s)) : NULL;
+}
+
+char *tw_strndup(const char *s, size_t n)
+{
+    char *p = malloc(n + 1);
+    if (!p)
+        return NULL;
+    memcpy(p, s, n);
+    p[n] = '\0';
+    return p;
+}
+
+char *tw_asprintf(const char *fmt, ...)
+{
+    va_list ap;
+    va_start(ap, fmt);
+    int n = vsnprintf(NULL, 0, fmt, ap);
+    va_end(ap);
+    if (n < 0)
+        return NULL;
+    char *p = malloc((size_t)n + 1);
+    if (!p)
+        return NULL;
+    va_start(ap, fmt);
+    vsnprintf(p, (size_t)n + 1, fmt, ap);
+    va_end(ap);
+    return p;
+}
+
+char *tw_trim(char *s)
+{
+    size_t n = strlen(s);
+    while (n > 0 && isspace((unsigned char)s[n - 1]))
+        s[--n] = '\0';
+    size_t start = 0;
+    while (s[start] && isspace((unsigned char)s[start]))
+        start++;
+    if (start)
+        memmove(s, s + start, n - start + 1);
+    return s;
+}
+
+/* strtod accepts "inf", "nan" and hex floats; study results are plain decimals, so anything
+ * else is refused rather than guessed at. */
+int tw_parse_double(const char *s, double *out)
+{
+    while (isspace((unsigned char)*s))
+        s++;
+    const char *p = s;
+    if (*p == '+' || *p == '-')
+        p++;
+    if (!isdigit((unsigned char)*p) && !(*p == '.' && isdigit((unsigned char)p[1])))
+        return -1;
+    for (const char *q = p; *q; q++)
+        if (*q == 'x' || *q == 'X')
+            return -1;
+    errno = 0;
+    char *end;
+    double v = strtod(s, &end);
+    if (end == s || errno == ERANGE || !isfinite(v))
+        return -1;
+    while (isspace((unsigned char)*end))
+        end++;
+    if (*end)
+        return -1;
+    *out = v;
+    return 0;
+}
+
+int tw_strcaseeq(const char *a, const char *b)
+{
+    for (; *a && *b; a++, b++)
+        if (tolower((unsigned char)*a) != tolower((unsigned char)*b))
+            return 0;
+    return *a == *b;
+}
+
+char *tw_read_file(const char *path, size_t *len, char *err, size_t errlen)
+{
+    FILE *f = fopen(path, "rb");
+    if (!f) {
+        snprintf(err, errlen, "%s: cannot open for reading: %s", path, strerror(errno));
+        return NULL;
+    }
+    struct stat st;
+    if (fstat(fileno(f), &st) == 0 && S_ISDIR(st.st_mode)) {
+        snprintf(err, errlen, "%s: is a directory, expected a file", path);
+        fclose(f);
+        return NULL;
+    }
+    size_t cap = 65536, n = 0;
+    char *buf = malloc(cap + 1);
+    while (buf) {
+        size_t got = fread(buf + n, 1, cap - n, f);
+        n += got;
+        if (n < cap) {
+            if (ferror(f)) {
+                snprintf(err, errlen, "%s: read error: %s", path, strerror(errno));
+                free(buf);
+                buf = NULL;
+            }
+            break;
+        }
+        if (cap >= (size_t)TW_MAX_INPUT_BYTES) {
+            snprintf(err, errlen, "%s: larger than the %ld MiB limit", path,
+                     TW_MAX_INPUT_BYTES / (1024 * 1024));
+            free(buf);
+            buf = NULL;
+            break;
+        }
+        cap *= 2;
+        char *nb = realloc(buf, cap + 1);
+        if (!nb) {
+            free(buf);
+            buf = NULL;
+        } else {
+            buf = nb;
+        }
+    }
+    fclose(f);
+    if (!buf) {
+        if (!*err)
+            snprintf(err, errlen, "%s: out of memory", path);
+        return NULL;
+    }
+    buf[n] = '\0';
+    *len = n;
+    return buf;
+}
