@@ -30,8 +30,9 @@ typedef struct {
     int current;                /* 1 current, 0 superseded */
     char *superseded_on;        /* date, when superseded */
     char *reason;               /* why this revision was made (NULL for a first print) */
-    char *changes;              /* "field: old -> new; ..." when replacing a revision */
+    char *changes;              /* "field: old -> new; ..." against the revision it replaced */
     char *payload;              /* the QR payload printed */
+    char *content;              /* the label's canonical form (tw_label_canonical) */
 } tw_manifest_entry;
 
 typedef struct {
@@ -55,11 +56,19 @@ const tw_manifest_entry *tw_manifest_current(const tw_manifest *m, const char *e
 /* The revision the next print of this content would get (same hash: same revision). */
 int tw_manifest_next_revision(const tw_manifest *m, const char *equipment_id, const char *hash);
 
-/* Record a printed label. Returns its revision, or -1 when out of memory. reason and changes
- * may be NULL. */
-int tw_manifest_record(tw_manifest *m, const char *equipment_id, const char *hash,
-                       const char *study_id, const char *printed, const char *output, int volume,
-                       int page, const char *payload, const char *reason, const char *changes);
+/* What one printed label contributes to the manifest. reason may be NULL. */
+typedef struct {
+    const char *equipment_id, *hash, *content, *study_id, *printed, *output, *payload, *reason;
+    int volume, page;
+} tw_manifest_print;
+
+/* Record a printed label. When the content hash differs from the current revision's, that one
+ * is marked superseded and the new entry lists the changed fields. Returns the revision, or -1
+ * when out of memory (the manifest is unchanged). */
+int tw_manifest_record(tw_manifest *m, const tw_manifest_print *p);
+
+/* "field: old -> new; ..." between two canonical forms (fresh string, "" when equal). */
+char *tw_manifest_changes(const char *old_content, const char *new_content);
 
 /* Write atomically. 0, or -1 with a message in err. */
 int tw_manifest_save(tw_manifest *m, char *err, size_t errlen);

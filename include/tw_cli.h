@@ -1,0 +1,28 @@
+/*
+ * tw_cli.h - the subcommands. Each takes the arguments after its name (argv[0] is the command
+ * name), prints what it has to say, and returns the exit status; only main() exits.
+ *
+ * Exit status: 0 fine, 1 bad data (findings printed), 2 bad usage, 3 I/O error or a result
+ * refused on safety grounds (each command documents which).
+ * Adding a command: write src/cmd_NAME.c with int cmd_NAME(int, char **), declare it here,
+ * and add one row to the table in src/main.c.
+ */
+#ifndef TW_CLI_H
+#define TW_CLI_H
+
+enum { TW_EXIT_OK = 0, TW_EXIT_DATA = 1, TW_EXIT_USAGE = 2, TW_EXIT_IO = 3 };
+
+int cmd_check(int argc, char **argv);
+int cmd_labels(int argc, char **argv);
+
+/* Print "tagwright CMD: message" to stderr and return TW_EXIT_USAGE. */
+int tw_usage_error(const char *cmd, const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 2, 3)))
+#endif
+    ;
+
+/* Parse a "YYYY-MM-DD" option value into buf (11 bytes); -1 when it is not a date. */
+int tw_option_date(const char *value, char *buf);
+
+#endif

@@ -1,0 +1,35 @@
+/* study.c - read -> validate for one results file (see tw_study.h). */
+#include "tw_study.h"
+
+#include <string.h>
+
+#include "tw_validate.h"
+
+int tw_study_load(tw_study *s, const char *results_path, const char *site_path)
+{
+    memset(s, 0, sizeof *s);
+    tw_diags_init(&s->diags);
+    if (tw_site_defaults(&s->site) != 0)
+        return -1;
+    if (site_path && tw_site_load(site_path, &s->site, &s->diags) != 0) {
+        s->site_bad = 1;
+        return -1;
+    }
+    if (tw_results_read(results_path, &s->results, &s->diags) != 0) {
+        s->unreadable = 1;
+        return -1;
+    }
+    if (tw_bus_set_build(&s->results, &s->buses) != 0)
+        return -1;
+    tw_validate(&s->results, &s->buses, &s->site, &s->diags);
+    return 0;
+}
+
+void tw_study_free(tw_study *s)
+{
+    tw_bus_set_free(&s->buses);
+    tw_results_free(&s->results);
+    tw_site_free(&s->site);
+    tw_diags_free(&s->diags);
+    memset(s, 0, sizeof *s);
+}
