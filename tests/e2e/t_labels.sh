@@ -1,0 +1,69 @@
+# t_labels.sh - labels from a small crafted study, checked with tools we did not write:
+# qpdf --check, pdfinfo (page size and count), pdftotext (values), pdftoppm + zbarimg (QR).
+source "$(dirname "$0")/lib.sh"
+out="$TW_TMP/labels.pdf"
+run labels "$TW_DATA/core/small.csv" --out "$out" --date 2026-12-01
+expect_rc 0 "labels for a clean study"
+check "the PDF exists" test -s "$out"
+check "the manifest is written beside the PDF" test -s "$TW_TMP/labels.manifest.json"
+check "qpdf --check passes" qpdf --check "$out"
+info=$(pdfinfo "$out")
+contains "$info" "Pages:          4" "one page per bus (4 buses, 5 scenario rows)"
+contains "$info" "Page size:      288 x 432 pts" "4 x 6 in pages (288 x 432 pt)"
+
+# Page 2 is E2E-MCC-1: the utility-min scenario governs (7.81 > 6.25 cal/cm2).
+p2=$(page_text "$out" 2)
+contains "$p2" "E2E-MCC-1" "equipment ID printed"
+contains "$p2" "480 V" "nominal voltage printed"
+contains "$p2" "7.9 cal/cm" "incident energy rounded up to 0.1 (7.81 -> 7.9)"
+contains "$p2" "utility-min" "governing scenario named"
+# 56.4 in = 1432.56 mm -> 1433 mm; 57 in = 4 ft 9 in (rounded up toward safety)
+contains "$p2" "4 ft 9 in" "arc-flash boundary in ft-in, rounded up"
+contains "$p2" "1433 mm" "arc-flash boundary in mm, rounded up"
+# NFPA 70E Table 130.4(E)(a), 151-750 V: limited (fixed part) 3 ft 6 in, restricted 1 ft 0 in
+contains "$p2" "3 ft 6 in" "limited approach boundary for 480 V"
+contains "$p2" "1 ft 0 in" "restricted approach boundary for 480 V"
+# ASTM D120: class 00 maximum use voltage 500 V AC covers 480 V
+contains "$p2" "Class 00" "glove class for 480 V"
+contains "$p2" "2031-09-15" "review due 5 years after the study date (NFPA 70E 130.5(G))"
+lacks "$p2" "PPE category" "never both incident energy and PPE category (NFPA 70E 130.5(H))"
+contains "$p2" "WARNING" "signal word WARNING below 40 cal/cm2"
+
+# Page 3 is the 2000 A service switchboard at 48.2 cal/cm2: DANGER, no PPE adequate, NEC 110.16(B)
+p3=$(page_text "$out" 3)
+contains "$p3" "DANGER" "signal word DANGER above 40 cal/cm2"
+contains "$p3" "42.5 kA" "NEC 110.16(B) available fault current"
+contains "$p3" "0.500 s" "NEC 110.16(B) clearing time"
+
+# Page 4: 13.8 kV switchgear. Table 130.4(E)(a) 751 V-15 kV: 5 ft 0 in / 2 ft 2 in; ASTM D120 class 2.
+p4=$(page_text "$out" 4)
+contains "$p4" "5 ft 0 in" "limited approach boundary for 13.8 kV"
+contains "$p4" "2 ft 2 in" "restricted approach boundary for 13.8 kV"
+contains "$p4" "Class 2" "glove class for 13.8 kV"
+
+if has_tool zbarimg && has_tool pdftoppm; then
+    payload=$(qr_of "$out" 2)
+    hash=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["content_hash"])' "$TW_TMP/labels.manifest.json")
+    mpay=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["payload"])' "$TW_TMP/labels.manifest.json")
+    contains "$payload" "$hash" "QR decoded by zbarimg carries the manifest's content hash"
+    [ "$payload" = "$mpay" ] && ok "QR payload equals the manifest's payload" || fail "QR payload '$payload' != '$mpay'"
+    # the hash is the SHA-256 of the canonical content recorded in the manifest
+    content_hash=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["content"], end="")' "$TW_TMP/labels.manifest.json" | sha256sum | cut -d" " -f1)
+    [ "$content_hash" = "$hash" ] && ok "content hash = sha256sum of the canonical form" || fail "sha256sum gives $content_hash, manifest says $hash"
+else
+    fail "zbarimg/pdftoppm not installed"
+fi
+
+# --bus selects one label
+run labels "$TW_DATA/core/small.csv" --out "$TW_TMP/one.pdf" --bus E2E-SWGR-1 --date 2026-12-01
+expect_rc 0 "--bus prints one label"
+contains "$(pdfinfo "$TW_TMP/one.pdf")" "Pages:          1" "one page for one --bus"
+run labels "$TW_DATA/core/small.csv" --out "$TW_TMP/none.pdf" --bus NO-SUCH-BUS
+expect_rc 1 "--bus with an unknown ID"
+contains "$ERR" "NO-SUCH-BUS" "the unknown ID is named"
+check "no PDF for an unknown --bus" test ! -e "$TW_TMP/none.pdf"
+
+# the same input and date give the same bytes
+run labels "$TW_DATA/core/small.csv" --out "$TW_TMP/again.pdf" --manifest "$TW_TMP/again.json" --date 2026-12-01
+check "output is byte-for-byte reproducible" cmp "$out" "$TW_TMP/again.pdf"
+finish
