@@ -48,7 +48,7 @@ static const char *const key_names[TW_L_COUNT] = {
 };
 
 /* NFPA 70E 130.5(G): the arc-flash risk assessment is reviewed at intervals not exceeding
- * 5 years (from memory, verify against the edition in force). */
+ * 5 years (from memory, subsection number included: verify against the edition in force). */
 #define TW_REVIEW_YEARS 5
 
 /* NFPA 70E 130.5(H): a PPE category is 1 to 4. */
@@ -444,10 +444,12 @@ static int usable(const tw_row *r, tw_field f)
 /*
  * The arc-flash boundary as the study gives it; when the study left it out, computed from the
  * incident energy where it falls to 1.2 cal/cm2 (NFPA 70E definition of the arc-flash
- * boundary; IEEE 1584-2018 distance relation E ~ 1/D^x):
+ * boundary) with the IEEE 1584 distance relation E ~ 1/D^x:
  *     AFB = D x (E / 1.2)^(1/x)
- * using the energy already rounded up, so the boundary is never smaller than the printed
- * energy implies.
+ * This is exact when the energy falls off as D^-x (IEEE 1584-2002; one voltage range of
+ * IEEE 1584-2018) and an estimate otherwise, which is why the study's own boundary always
+ * wins and the label says the value was computed. The energy used is the one already rounded
+ * up, so the boundary is never smaller than the printed energy implies.
  */
 static void derive_boundary(deriver *D)
 {

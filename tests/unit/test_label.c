@@ -234,7 +234,8 @@ static void label_should_fall_back_to_energy_when_the_category_is_absent(void **
 
 /*
  * IEEE 1584 / NFPA 70E: the arc-flash boundary is where the energy falls to 1.2 cal/cm2.
- * E = 8 cal/cm2 at D = 455 mm, distance exponent x = 1.641:
+ * E = 8 cal/cm2 at D = 455 mm, distance exponent x = 1.641 (IEEE 1584-2002 Table 4, low-voltage
+ * MCCs and panels; from memory), worked with a calculator:
  *   AFB = 455 x (8 / 1.2)^(1 / 1.641) = 455 x 6.6667^0.60938 = 455 x 3.17744 = 1445.73 mm
  *   -> 1446 mm; 1445.73 / 25.4 = 56.92 in -> 57 in = 4 ft 9 in.
  */
