@@ -10,6 +10,8 @@
  *
  * Canonical form (docs/manifest.md): for each field in enum order that has a value,
  * "key=value\n", UTF-8, no trailing blanks. The hash is the lowercase hex SHA-256 of it.
+ * service_label_date is left out of the canonical form, so reprinting unchanged content on
+ * another day keeps the same hash.
  *
  * Ownership: the label owns its strings; tw_label_free() accepts a zeroed label.
  */
@@ -66,7 +68,8 @@ const char *tw_label_key_name(tw_label_key k);
 
 /* Derive label content for the bus's governing scenario. print_date is "YYYY-MM-DD".
  * Returns 0 when every required item is present; otherwise adds error findings and returns -1,
- * leaving out what is missing (a caller may still print a watermarked draft). */
+ * leaving out what is missing (a caller may still print a watermarked draft). out is filled
+ * from scratch: pass a zeroed label, or one already freed. */
 int tw_label_derive(const tw_bus *bus, const tw_site *site, const char *print_date,
                     tw_label *out, tw_diags *d);
 

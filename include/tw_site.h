@@ -38,6 +38,8 @@ typedef struct {
 int tw_site_defaults(tw_site *s);
 
 /* Load settings from a JSON file over the defaults. Findings name the JSON path.
+ * s is filled from scratch (pass a zeroed or uninitialised struct, not one that still holds
+ * settings) and is always left freeable with tw_site_free().
  * Returns 0 when usable (warnings allowed), -1 when there was an error. */
 int tw_site_load(const char *path, tw_site *s, tw_diags *d);
 int tw_site_load_mem(const char *name, const char *data, size_t len, tw_site *s, tw_diags *d);
