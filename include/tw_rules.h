@@ -47,7 +47,7 @@ double tw_round_energy_up(double cal);
 long tw_round_mm_up(double mm);
 long tw_round_in_up(double mm);
 
-/* Format a length for a label: imperial with metric, "4 ft 7 in (1398 mm)", or metric only,
+/* Format a length for a label: imperial with metric, "4 ft 8 in (1398 mm)", or metric only,
  * "1398 mm". Both parts are rounded up. Writes at most n bytes. */
 void tw_format_length(double mm, tw_units units, char *buf, size_t n);
 

@@ -9,7 +9,8 @@ int tw_study_load(tw_study *s, const char *results_path, const char *site_path)
 {
     memset(s, 0, sizeof *s);
     tw_diags_init(&s->diags);
-    if (tw_site_defaults(&s->site) != 0)
+    /* tw_site_load() starts from the defaults itself. */
+    if (!site_path && tw_site_defaults(&s->site) != 0)
         return -1;
     if (site_path && tw_site_load(site_path, &s->site, &s->diags) != 0) {
         s->site_bad = 1;
