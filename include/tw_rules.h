@@ -51,6 +51,11 @@ long tw_round_in_up(double mm);
  * "1398 mm". Both parts are rounded up. Writes at most n bytes. */
 void tw_format_length(double mm, tw_units units, char *buf, size_t n);
 
+/* Format a stated distance (the working distance of an incident energy) to the NEAREST inch
+ * and millimetre: it is a condition of the study, not a boundary, so rounding it up would
+ * misstate where the energy applies. "18 in (457 mm)" or "457 mm". */
+void tw_format_distance(double mm, tw_units units, char *buf, size_t n);
+
 typedef enum { TW_SIGNAL_WARNING, TW_SIGNAL_DANGER } tw_signal;
 
 /* DANGER when cal exceeds the site's threshold or the highest PPE level it stocks. */

@@ -405,7 +405,7 @@ static double derive_energy(deriver *D)
         if (need_number(D, TW_F_WORKING_DISTANCE_MM, "the working distance of the incident "
                         "energy, NFPA 70E 130.5(H)", &wd) == 0) {
             char buf[96];
-            tw_format_length(wd, D->site->units, buf, sizeof buf);
+            tw_format_distance(wd, D->site->units, buf, sizeof buf);
             if (buf[0])
                 set(D, TW_L_WORKING_DISTANCE, buf);
             else
@@ -512,8 +512,25 @@ static double round_up_to(double v, double per_unit)
  * (1200 A by default) carries the nominal voltage, the available fault current at the service
  * overcurrent devices, their clearing time, and the date the label was applied.
  */
-static void derive_service(deriver *D, const char *print_date)
+/* The scenario with the highest bolted fault current: NEC 110.16(B) asks for the available
+ * fault current, which is the largest the study found, not the one of the scenario with the
+ * most incident energy; the clearing time printed is the device's at that current. */
+static const tw_row *max_fault_row(const tw_bus *bus, const tw_row *fallback)
 {
+    const tw_row *best = fallback;
+    for (size_t i = 0; i < bus->count; i++) {
+        const tw_row *r = bus->rows[i];
+        if (tw_row_has(r, TW_F_BOLTED_FAULT_KA) &&
+            (!tw_row_has(best, TW_F_BOLTED_FAULT_KA) ||
+             r->num[TW_F_BOLTED_FAULT_KA] > best->num[TW_F_BOLTED_FAULT_KA]))
+            best = r;
+    }
+    return best;
+}
+
+static void derive_service(deriver *D, const tw_bus *bus, const char *print_date)
+{
+    const tw_row *governing = D->row;
     const tw_row *r = D->row;
     if ((r->invalid >> TW_F_SERVICE_EQUIPMENT) & 1u) {
         report(D, TW_ERROR, TW_F_SERVICE_EQUIPMENT,
@@ -527,11 +544,13 @@ static void derive_service(deriver *D, const char *print_date)
         return;
     if (amps < D->site->service_label_min_a)
         return;
+    D->row = max_fault_row(bus, governing);
     if (need_number(D, TW_F_BOLTED_FAULT_KA, "available fault current, NEC 110.16(B)", &ka) == 0)
         setf(D, TW_L_AVAILABLE_FAULT, "%.1f kA", round_up_to(ka, 10));
     if (need_number(D, TW_F_CLEARING_TIME_S, "clearing time of the service overcurrent device, "
                     "NEC 110.16(B)", &s) == 0)
         setf(D, TW_L_SERVICE_CLEARING_TIME, "%.3f s", round_up_to(s, 1000));
+    D->row = governing;
     tw_date date;
     if (!print_date || tw_date_parse(print_date, &date) != 0) {
         report(D, TW_ERROR, TW_F_SERVICE_EQUIPMENT,
@@ -565,7 +584,7 @@ int tw_label_derive(const tw_bus *bus, const tw_site *site, const char *print_da
     double rating = derive_energy(&D);
     derive_boundary(&D);
     derive_ppe_and_signal(&D, rating);
-    derive_service(&D, print_date);
+    derive_service(&D, bus, print_date);
     derive_dates(&D);
     if (tw_label_rehash(out) != 0)
         report(&D, TW_ERROR, TW_F_COUNT, "could not compute the content hash");

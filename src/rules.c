@@ -144,6 +144,21 @@ void tw_format_length(double mm, tw_units units, char *buf, size_t n)
         snprintf(buf, n, "%ld ft %ld in (%ld mm)", in / 12, in % 12, m);
 }
 
+void tw_format_distance(double mm, tw_units units, char *buf, size_t n)
+{
+    if (!buf || n == 0)
+        return;
+    if (!(mm >= 0 && mm <= TW_MAX_LENGTH_MM)) {
+        buf[0] = '\0';
+        return;
+    }
+    long m = lround(mm), in = lround(mm / 25.4);
+    if (units == TW_UNITS_METRIC)
+        snprintf(buf, n, "%ld mm", m);
+    else
+        snprintf(buf, n, "%ld in (%ld mm)", in, m);
+}
+
 /*
  * Signal words from ANSI Z535.4: DANGER for a hazard that will cause death or serious injury
  * if not avoided, WARNING for one that could. Drawing the line at 40 cal/cm2 is common

@@ -25,6 +25,7 @@ contains "$p2" "3 ft 6 in" "limited approach boundary for 480 V"
 contains "$p2" "1 ft 0 in" "restricted approach boundary for 480 V"
 # ASTM D120: class 00 maximum use voltage 500 V AC covers 480 V
 contains "$p2" "Class 00" "glove class for 480 V"
+contains "$p2" "18 in (457 mm)" "working distance as stated, to the nearest inch and mm"
 contains "$p2" "2031-09-15" "review due 5 years after the study date (NFPA 70E 130.5(G))"
 lacks "$p2" "PPE category" "never both incident energy and PPE category (NFPA 70E 130.5(H))"
 contains "$p2" "WARNING" "signal word WARNING below 40 cal/cm2"

@@ -110,7 +110,8 @@ static int derive(fixture *f)
 
 /* The whole canonical form of the fixture label; its SHA-256 was computed with
  *   printf '<this text>' | sha256sum
- * -> 941237a78da93d41e613e19bc8ecc7e1de20614e89c6aff58174c42adab29c9e */
+ * -> a95f80042f5ed278c86f73996fe55738d6154c414014b4c874cb6cfeab2dedb8
+ * (the working distance prints to the nearest inch and mm: 455 mm = 17.9 in -> 18 in) */
 static const char fixture_canonical[] =
     "signal_word=WARNING\n"
     "equipment_id=PH-SWGR-2\n"
@@ -119,7 +120,7 @@ static const char fixture_canonical[] =
     "nominal_voltage=480 V\n"
     "arc_flash_boundary=4 ft 8 in (1398 mm)\n"
     "incident_energy=6.3 cal/cm2\n"
-    "working_distance=1 ft 6 in (455 mm)\n"
+    "working_distance=18 in (455 mm)\n"
     "min_arc_rating=6.3 cal/cm2\n"
     "ppe_level=AR-8 (8 cal/cm2)\n"
     "limited_approach=3 ft 6 in (1.0 m)\n"
@@ -130,7 +131,7 @@ static const char fixture_canonical[] =
     "scenario=utility maximum\n"
     "review_due=2029-02-28\n";
 static const char fixture_hash[] =
-    "941237a78da93d41e613e19bc8ecc7e1de20614e89c6aff58174c42adab29c9e";
+    "a95f80042f5ed278c86f73996fe55738d6154c414014b4c874cb6cfeab2dedb8";
 
 static void label_should_match_the_canonical_form_and_its_sha256sum(void **state)
 {
@@ -192,7 +193,7 @@ static void label_should_show_energy_and_never_the_category_in_energy_mode(void 
     num(&f->row, TW_F_PPE_CATEGORY, 2);
     assert_int_equal(derive(f), 0);
     assert_string_equal(V(f, TW_L_INCIDENT_ENERGY), "6.3 cal/cm2");   /* 6.25 rounded up */
-    assert_string_equal(V(f, TW_L_WORKING_DISTANCE), "1 ft 6 in (455 mm)");
+    assert_string_equal(V(f, TW_L_WORKING_DISTANCE), "18 in (455 mm)");
     assert_string_equal(V(f, TW_L_MIN_ARC_RATING), "6.3 cal/cm2");
     assert_null(V(f, TW_L_PPE_CATEGORY));
     assert_near(f->label.incident_energy_cal, 6.3, 1e-12);
