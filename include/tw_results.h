@@ -8,9 +8,11 @@
  *
  * Readers never stop at the first bad value: a cell that cannot be parsed gets an error finding
  * (file and line, or JSON path, and the column name), the field is marked invalid, and reading
- * goes on. Only an unreadable file, or one whose rows cannot all be recovered (not CSV/JSON at
- * all, broken quoting, a duplicated column, a bus that is not an object, a limit exceeded),
- * makes them return -1: a lost row could be a bus's worst case, so nothing may be posted.
+ * goes on. A finding about the file as a whole (broken quoting, a duplicated column, a bus that
+ * is not an object, a limit reached) means rows may be lost or ambiguous - a lost row could be a
+ * bus's worst case - so it is counted in the errors of every row read and no bus is posted.
+ * Only an unreadable file, one that is not CSV/JSON at all (no known column in the header,
+ * invalid JSON syntax), or running out of memory makes them return -1.
  *
  * Ownership: tw_results owns its rows and their strings; tw_results_free() accepts a zeroed set.
  */

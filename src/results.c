@@ -54,7 +54,8 @@ void tw_row_diag(tw_diags *d, tw_row *r, tw_severity sev, tw_field field, const 
     }
     /* Without memory the finding still counts (tw_diag_add drops only its text). */
     tw_source src = {r->file, r->path ? 0 : r->line, path ? path : r->path};
-    tw_diag_add(d, sev, &src, r->text[TW_F_EQUIPMENT_ID], name, "%s", msg ? msg : "(out of memory)");
+    tw_diag_add(d, sev, &src, r->text[TW_F_EQUIPMENT_ID], name, "%s",
+                msg ? msg : "(out of memory)");
     free(msg);
     free(path);
     if (sev == TW_ERROR)
@@ -383,9 +384,8 @@ int tw_results_read(const char *path, tw_results *out, tw_diags *d)
     if (!data) {
         /* tw_read_file's message starts with the path, which the finding already names */
         size_t plen = strlen(path);
-        const char *reason = strncmp(err, path, plen) == 0 && err[plen] == ':' && err[plen + 1] == ' '
-                                 ? err + plen + 2
-                                                                                : err;
+        int named = strncmp(err, path, plen) == 0 && err[plen] == ':' && err[plen + 1] == ' ';
+        const char *reason = named ? err + plen + 2 : err;
         tw_source src = {path, 0, NULL};
         tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "%s", reason);
         return -1;

@@ -35,16 +35,27 @@ typedef struct {
     long row_line;      /* line the current row starts on */
     long cell_line;     /* line the last complete cell of the current row ended on */
     int row_open;
-    int failed;         /* a row could not be recovered: the read returns -1 */
+    unsigned file_errors; /* findings about the file as a whole (counted on every row) */
+    int fatal;          /* not a results file, or out of memory: the read returns -1 */
     int stop;           /* reading has stopped */
 } csv_reader;
 
-/* An error about the file rather than a value; the read fails closed. */
+/* An error about the file rather than one value: rows may be lost or ambiguous, so it counts
+ * against every row read (at the end of tw_results_read_csv) and no bus from it is posted. */
 static void file_error(csv_reader *rd, long line, const char *msg)
 {
     tw_source src = {rd->out->file, line, NULL};
     tw_diag_add(rd->d, TW_ERROR, &src, NULL, NULL, "%s", msg);
-    rd->failed = 1;
+    rd->file_errors++;
+}
+
+/* Not a results file at all, or out of memory: reading stops and the read fails. */
+static void fatal_error(csv_reader *rd, long line, const char *msg)
+{
+    tw_source src = {rd->out->file, line, NULL};
+    tw_diag_add(rd->d, TW_ERROR, &src, NULL, NULL, "%s", msg);
+    rd->fatal = 1;
+    rd->stop = 1;
 }
 
 static int reserve(void **p, size_t *cap, size_t need, size_t size)
@@ -86,7 +97,8 @@ static void on_cell(void *s, size_t len, void *data)
         return;
     rd->cell_line = rd->line;
     if (len > TW_MAX_CELL_BYTES) {
-        file_error(rd, rd->line, "cell longer than 64 KiB; expected at most that; reading stops here");
+        file_error(rd, rd->line,
+                   "cell longer than 64 KiB; expected at most that; reading stops here");
         rd->stop = 1;
         return;
     }
@@ -95,10 +107,8 @@ static void on_cell(void *s, size_t len, void *data)
         rd->extra_cells++;
         return;
     }
-    if (store_cell(rd, s, len) != 0) {
-        file_error(rd, rd->line, "out of memory while reading");
-        rd->stop = 1;
-    }
+    if (store_cell(rd, s, len) != 0)
+        fatal_error(rd, rd->line, "out of memory while reading");
 }
 
 static char *cell(csv_reader *rd, size_t i)
@@ -141,8 +151,7 @@ static void read_header(csv_reader *rd)
     size_t *first = calloc(tw_column_count, sizeof *first); /* 1 + position of each column */
     if (!rd->cols || !first) {
         free(first);
-        file_error(rd, rd->row_line, "out of memory while reading the header");
-        rd->stop = 1;
+        fatal_error(rd, rd->row_line, "out of memory while reading the header");
         return;
     }
     rd->ncols = rd->ncells;
@@ -159,7 +168,7 @@ static void read_header(csv_reader *rd)
             tw_diag_add(rd->d, TW_ERROR, &src, NULL, c->name,
                         "column given twice (numbers %zu and %zu); expected each column once",
                         first[k], i + 1);
-            rd->failed = 1;
+            rd->file_errors++;
             continue;
         }
         first[k] = i + 1;
@@ -168,17 +177,16 @@ static void read_header(csv_reader *rd)
     }
     free(first);
     if (known == 0) {
-        file_error(rd, rd->row_line,
-                   "expected a header row of column names such as equipment_id, found none that "
-                   "tagwright knows; is this a results file?");
-        rd->stop = 1;
+        fatal_error(rd, rd->row_line,
+                    "expected a header row of column names such as equipment_id, found none that "
+                    "tagwright knows; is this a results file?");
         return;
     }
     for (size_t i = 0; i < rd->ncells; i++)
         if (!rd->cols[i])
             warn_unknown_column(rd, i, cell(rd, i));
-    if (rd->failed)
-        rd->stop = 1; /* duplicated column: every row would be ambiguous */
+    if (rd->file_errors)
+        rd->stop = 1; /* a duplicated column makes every row ambiguous: read none */
 }
 
 static void read_row(csv_reader *rd)
@@ -188,14 +196,13 @@ static void read_row(csv_reader *rd)
         tw_diag_add(rd->d, TW_ERROR, &src, NULL, NULL,
                     "more than %d rows; expected at most that many in one file; reading stops here",
                     TW_MAX_ROWS);
-        rd->failed = 1;
+        rd->file_errors++;
         rd->stop = 1;
         return;
     }
     tw_row *r = tw_results_add_row(rd->out);
     if (!r) {
-        file_error(rd, rd->row_line, "out of memory while reading");
-        rd->stop = 1;
+        fatal_error(rd, rd->row_line, "out of memory while reading");
         return;
     }
     r->line = rd->row_line;
@@ -288,7 +295,7 @@ static void finish(csv_reader *rd)
         return;
     }
     if (!rd->have_header && !rd->stop)
-        file_error(rd, 1, "expected a header row of column names, found no rows at all");
+        fatal_error(rd, 1, "expected a header row of column names, found no rows at all");
 }
 
 static void reader_free(csv_reader *rd)
@@ -336,5 +343,7 @@ int tw_results_read_csv(const char *name, const char *data, size_t len, tw_resul
     }
     finish(&rd);
     reader_free(&rd);
-    return rd.failed ? -1 : 0;
+    for (size_t i = 0; i < out->count; i++)
+        out->rows[i].errors += rd.file_errors;
+    return rd.fatal ? -1 : 0;
 }

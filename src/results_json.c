@@ -18,14 +18,24 @@ typedef struct {
     tw_results *out;
     tw_diags *d;
     tw_map warned;      /* unknown keys already reported (keys point into the cJSON tree) */
-    int failed;         /* a bus could not be read: the read returns -1 */
+    unsigned file_errors; /* findings about the file's shape (counted on every row) */
+    int fatal;          /* out of memory: the read returns -1 */
 } json_reader;
 
+/* An error about the shape of the file rather than one value: buses may be lost, so it counts
+ * against every row read and no bus from the file is posted. */
 static void path_error(json_reader *jr, const char *path, const char *msg)
 {
     tw_source src = {jr->out->file, 0, path};
     tw_diag_add(jr->d, TW_ERROR, &src, NULL, NULL, "%s", msg);
-    jr->failed = 1;
+    jr->file_errors++;
+}
+
+static void out_of_memory(json_reader *jr, const char *path)
+{
+    tw_source src = {jr->out->file, 0, path};
+    tw_diag_add(jr->d, TW_ERROR, &src, NULL, NULL, "out of memory");
+    jr->fatal = 1;
 }
 
 static const char *type_name(const cJSON *v)
@@ -43,6 +53,15 @@ static const char *type_name(const cJSON *v)
     return "null";
 }
 
+/* A value given but unusable: reported already; validation must not call it missing. */
+static void mark_invalid(tw_row *r, tw_field f)
+{
+    free(r->text[f]);
+    r->text[f] = NULL;
+    r->present &= ~(1u << f);
+    r->invalid |= 1u << f;
+}
+
 static void wrong_type(json_reader *jr, tw_row *r, const tw_column *c, const char *expected,
                        const cJSON *v)
 {
@@ -55,8 +74,7 @@ static void wrong_type(json_reader *jr, tw_row *r, const tw_column *c, const cha
         tw_row_diag(jr->d, r, TW_ERROR, c->field, c->name, "expected %s, got %s", expected,
                     type_name(v));
     }
-    r->present &= ~(1u << c->field);
-    r->invalid |= 1u << c->field;
+    mark_invalid(r, c->field);
 }
 
 /* One value of a bus (or of the study defaults); null is an absent value. */
@@ -110,7 +128,7 @@ static void read_object(json_reader *jr, tw_row *r, const cJSON *obj)
 {
     unsigned char *seen = calloc(tw_column_count, 1);
     if (!seen) {
-        path_error(jr, r->path, "out of memory");
+        out_of_memory(jr, r->path);
         return;
     }
     for (int pass = 0; pass < 2; pass++) {
@@ -127,8 +145,7 @@ static void read_object(json_reader *jr, tw_row *r, const cJSON *obj)
             if (seen[k]) {
                 tw_row_diag(jr->d, r, TW_ERROR, c->field, c->name,
                             "key given twice in one object; expected it once");
-                r->present &= ~(1u << c->field);
-                r->invalid |= 1u << c->field;
+                mark_invalid(r, c->field);
                 continue;
             }
             seen[k] = 1;
@@ -172,7 +189,7 @@ static void read_buses(json_reader *jr, const cJSON *buses, const tw_row *def)
     for (const cJSON *b = buses->child; b; b = b->next, i++) {
         char *path = tw_asprintf("buses[%zu]", i);
         if (!path) {
-            path_error(jr, "buses", "out of memory");
+            out_of_memory(jr, "buses");
             return;
         }
         if (!cJSON_IsObject(b)) {
@@ -190,13 +207,13 @@ static void read_buses(json_reader *jr, const cJSON *buses, const tw_row *def)
         tw_row *r = tw_results_add_row(jr->out);
         if (!r) {
             free(path);
-            path_error(jr, "buses", "out of memory");
+            out_of_memory(jr, "buses");
             return;
         }
         r->path = path;
         read_object(jr, r, b);
         if (apply_defaults(r, def) != 0) {
-            path_error(jr, path, "out of memory");
+            out_of_memory(jr, path);
             return;
         }
     }
@@ -223,7 +240,7 @@ static void read_top_level(json_reader *jr, const cJSON *root)
         if (!cJSON_IsObject(study)) {
             path_error(jr, "study", "expected an object of study-wide values");
         } else if (!(def.path = tw_strdup("study"))) {
-            path_error(jr, "study", "out of memory");
+            out_of_memory(jr, "study");
         } else {
             read_object(jr, &def, study);
         }
@@ -238,7 +255,8 @@ static void read_top_level(json_reader *jr, const cJSON *root)
 }
 
 /* cJSON would cut a string at an escaped NUL without saying so; a value must never be
- * shortened silently, so the file is refused. Returns the offset of the escape, or len. */
+ * shortened silently, so no bus is read from such a file. Returns the offset of the escape,
+ * or len. */
 static size_t find_escaped_nul(const char *s, size_t len)
 {
     for (size_t i = 0; i < len; i++) {
@@ -262,12 +280,22 @@ static long line_at(const char *s, size_t off)
     return line;
 }
 
-static int parse_error(tw_results *out, tw_diags *d, const char *data, size_t off,
+/* An error at a place in the text (cJSON keeps no positions once parsed). */
+static void text_error(tw_results *out, tw_diags *d, const char *data, size_t off,
                        const char *msg)
 {
     tw_source src = {out->file, line_at(data, off), NULL};
     tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "%s", msg);
-    return -1;
+}
+
+/* Everything after the value must be blank. */
+static int only_blanks_after(const char *data, size_t off, size_t len, size_t *where)
+{
+    while (off < len && (data[off] == ' ' || data[off] == '\t' || data[off] == '\r' ||
+                         data[off] == '\n'))
+        off++;
+    *where = off;
+    return off == len;
 }
 
 int tw_results_read_json(const char *name, const char *data, size_t len, tw_results *out,
@@ -281,33 +309,33 @@ int tw_results_read_json(const char *name, const char *data, size_t len, tw_resu
         return -1;
     }
     size_t skip = len >= 3 && memcmp(data, "\xEF\xBB\xBF", 3) == 0 ? 3 : 0;
-    size_t nul = find_escaped_nul(data, len);
-    if (nul < len)
-        return parse_error(out, d, data, nul,
-                           "expected text without control characters, found an escaped NUL "
-                           "(\\u0000)");
     const char *end = NULL;
     cJSON *root = cJSON_ParseWithLengthOpts(data + skip, len - skip, &end, 0);
-    if (!root) {
-        size_t off = end && end >= data && end <= data + len ? (size_t)(end - data) : 0;
-        return parse_error(out, d, data, off,
-                           "not valid JSON here; expected {\"study\": {...}, \"buses\": [...]}");
+    size_t off = end && end >= data && end <= data + len ? (size_t)(end - data) : 0;
+    if (!root || !only_blanks_after(data, off, len, &off)) {
+        /* not JSON at all: the one case, with I/O and memory, where the read fails */
+        text_error(out, d, data, off,
+                   root ? "unexpected text after the end of the JSON object"
+                        : "not valid JSON here; expected {\"study\": {...}, \"buses\": [...]}");
+        cJSON_Delete(root);
+        return -1;
     }
-    size_t off = (size_t)(end - data);
-    while (off < len && (data[off] == ' ' || data[off] == '\t' || data[off] == '\r' ||
-                         data[off] == '\n'))
-        off++;
-    json_reader jr = {out, d, {0}, 0};
+    json_reader jr = {out, d, {0}, 0, 0};
     tw_map_init(&jr.warned);
-    if (off < len)
-        parse_error(out, d, data, off, "unexpected text after the end of the JSON object");
+    size_t nul = find_escaped_nul(data, len);
+    if (nul < len)
+        text_error(out, d, data, nul,
+                   "expected text without control characters, found an escaped NUL (\\u0000); "
+                   "no bus is read from this file");
     else if (!cJSON_IsObject(root))
-        parse_error(out, d, data, skip,
-                    "expected a JSON object {\"study\": {...}, \"buses\": [...]}");
+        text_error(out, d, data, skip,
+                   "expected a JSON object {\"study\": {...}, \"buses\": [...]}, got another "
+                   "kind of value; no bus is read from this file");
     else
         read_top_level(&jr, root);
-    int rc = off < len || !cJSON_IsObject(root) || jr.failed ? -1 : 0;
+    for (size_t i = 0; i < out->count; i++)
+        out->rows[i].errors += jr.file_errors;
     tw_map_free(&jr.warned);
     cJSON_Delete(root);
-    return rc;
+    return jr.fatal ? -1 : 0;
 }

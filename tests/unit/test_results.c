@@ -64,7 +64,8 @@ static void quoted_commas_and_newlines_should_stay_in_the_description(void **sta
     tw_results r;
     tw_diags d;
     const char *csv = "equipment_id,description,location\n"
-                      "MCC-3,\"Motor control, north \"\"wing\"\"\r\nSection 2\",\"Room 4, level 1\"\n";
+                      "MCC-3,\"Motor control, north \"\"wing\"\"\r\nSection 2\","
+                      "\"Room 4, level 1\"\n";
     assert_int_equal(read_csv(csv, &r, &d), 0);
     assert_int_equal(d.errors, 0);
     assert_int_equal(r.count, 1);
@@ -129,7 +130,8 @@ static void inches_feet_and_joules_should_convert_by_hand_arithmetic(void **stat
     (void)state;
     tw_results r;
     tw_diags d;
-    const char *csv = "equipment_id,arc_flash_boundary_in,working_distance_in,incident_energy_j_cm2\n"
+    const char *csv = "equipment_id,arc_flash_boundary_in,working_distance_in,"
+                      "incident_energy_j_cm2\n"
                       "A,48,18,33.472\n";
     assert_int_equal(read_csv(csv, &r, &d), 0);
     assert_int_equal(d.errors, 0);
@@ -232,7 +234,8 @@ static void service_equipment_should_accept_yes_no_words_in_any_case(void **stat
     done(&r, &d);
 }
 
-static void unterminated_quote_should_be_reported_with_its_line_and_fail_the_read(void **state)
+static void unterminated_quote_should_be_reported_with_its_line_and_taint_every_row(
+    void **state)
 {
     (void)state;
     tw_results r;
@@ -241,11 +244,14 @@ static void unterminated_quote_should_be_reported_with_its_line_and_fail_the_rea
                       "A,fine\n"
                       "B,\"never closed\n"
                       "C,swallowed\n";
-    assert_int_equal(read_csv(csv, &r, &d), -1);
+    assert_int_equal(read_csv(csv, &r, &d), 0);
     const tw_diag *g = find_diag(&d, "unterminated quoted cell");
     assert_non_null(g);
     assert_int_equal(g->line, 3);
     assert_int_equal(g->severity, TW_ERROR);
+    /* rows after the quote are lost, so no row of the file may be posted */
+    assert_int_equal(r.count, 1);
+    assert_int_equal(r.rows[0].errors, 1);
     done(&r, &d);
 }
 
@@ -255,10 +261,13 @@ static void a_stray_quote_should_be_reported_with_its_line(void **state)
     tw_results r;
     tw_diags d;
     const char *csv = "equipment_id,description\nA,fine\nB,\"closed\"then more\nC,x\n";
-    assert_int_equal(read_csv(csv, &r, &d), -1);
+    assert_int_equal(read_csv(csv, &r, &d), 0);
     const tw_diag *g = find_diag(&d, "malformed quoting");
     assert_non_null(g);
     assert_int_equal(g->line, 3);
+    assert_int_equal(d.errors, 1);
+    assert_int_equal(r.count, 1); /* reading stops at the broken row */
+    assert_int_equal(r.rows[0].errors, 1);
     done(&r, &d);
 }
 
@@ -269,7 +278,7 @@ static void a_duplicated_column_should_be_an_error_and_read_no_rows(void **state
     tw_diags d;
     assert_int_equal(read_csv("equipment_id,nominal_voltage_v,nominal_voltage_v\nA,480,600\n",
                               &r, &d),
-                     -1);
+                     0);
     assert_int_equal(d.errors, 1);
     assert_int_equal(d.items[0].line, 1);
     assert_string_equal(d.items[0].field, "nominal_voltage_v");
@@ -364,8 +373,9 @@ static void a_cell_over_64_kib_should_stop_reading_with_an_error(void **state)
     strcpy(csv + strlen(head) + big, "\"\nB,z\n");
     tw_results r;
     tw_diags d;
-    assert_int_equal(read_csv(csv, &r, &d), -1);
+    assert_int_equal(read_csv(csv, &r, &d), 0);
     assert_non_null(find_diag(&d, "longer than 64 KiB"));
+    assert_int_equal(r.count, 0);
     free(csv);
     done(&r, &d);
 }
@@ -478,32 +488,38 @@ static void wrong_json_shapes_should_be_errors_naming_the_path(void **state)
     (void)state;
     tw_results r;
     tw_diags d;
-    assert_int_equal(read_json("[1, 2]", &r, &d), -1);
+    assert_int_equal(read_json("[1, 2]", &r, &d), 0);
     assert_non_null(find_diag(&d, "expected a JSON object"));
+    assert_int_equal(r.count, 0);
     done(&r, &d);
 
-    assert_int_equal(read_json("{\"buses\": {\"equipment_id\": \"A\"}}", &r, &d), -1);
+    assert_int_equal(read_json("{\"buses\": {\"equipment_id\": \"A\"}}", &r, &d), 0);
     assert_string_equal(d.items[0].path, "buses");
+    assert_int_equal(r.count, 0);
     done(&r, &d);
 
-    assert_int_equal(read_json("{\"study\": {}}", &r, &d), -1);
+    assert_int_equal(read_json("{\"study\": {}}", &r, &d), 0);
     assert_non_null(find_diag(&d, "no \"buses\" key"));
     done(&r, &d);
 
-    assert_int_equal(read_json("{\"study\": [], \"buses\": []}", &r, &d), -1);
+    assert_int_equal(read_json("{\"study\": [], \"buses\": [{\"equipment_id\": \"A\"}]}", &r, &d),
+                     0);
     assert_string_equal(d.items[0].path, "study");
+    assert_int_equal(r.rows[0].errors, 1); /* its defaults are lost */
     done(&r, &d);
 
-    /* a bus that is not an object is lost, so the read fails, but the others are still read */
+    /* a bus that is not an object is lost: the others are read, and none may be posted */
     assert_int_equal(read_json("{\"buses\": [{\"equipment_id\": \"A\"}, 5, \"x\", "
                                "{\"equipment_id\": \"D\"}]}",
                                &r, &d),
-                     -1);
+                     0);
     assert_int_equal(d.errors, 2);
     assert_string_equal(d.items[0].path, "buses[1]");
     assert_non_null(strstr(d.items[0].message, "got a number"));
     assert_string_equal(d.items[1].path, "buses[2]");
     assert_int_equal(r.count, 2);
+    assert_int_equal(r.rows[0].errors, 2);
+    assert_int_equal(r.rows[1].errors, 2);
     done(&r, &d);
 }
 
@@ -526,7 +542,8 @@ static void json_unknown_keys_should_be_warned_once(void **state)
     (void)state;
     tw_results r;
     tw_diags d;
-    const char *json = "{\"version\": 2, \"buses\": [{\"equipment_id\": \"A\", \"colour\": \"red\"},"
+    const char *json = "{\"version\": 2, "
+                       "\"buses\": [{\"equipment_id\": \"A\", \"colour\": \"red\"},"
                        "{\"equipment_id\": \"B\", \"colour\": \"blue\"}]}";
     assert_int_equal(read_json(json, &r, &d), 0);
     assert_int_equal(d.errors, 0);
@@ -548,8 +565,9 @@ static void json_numbers_out_of_range_and_escaped_nul_should_be_refused(void **s
     assert_false(tw_row_has(&r.rows[0], TW_F_BOLTED_FAULT_KA));
     done(&r, &d);
 
-    assert_int_equal(read_json("{\"buses\": [{\"equipment_id\": \"A\\u0000B\"}]}", &r, &d), -1);
+    assert_int_equal(read_json("{\"buses\": [{\"equipment_id\": \"A\\u0000B\"}]}", &r, &d), 0);
     assert_non_null(find_diag(&d, "escaped NUL"));
+    assert_int_equal(r.count, 0);
     done(&r, &d);
 
     /* an escaped backslash followed by "u0000" is plain text */
@@ -570,6 +588,15 @@ static void json_key_given_twice_should_be_an_error(void **state)
     assert_int_equal(d.errors, 1);
     assert_int_equal(r.rows[0].errors, 1);
     assert_false(tw_row_has(&r.rows[0], TW_F_NOMINAL_VOLTAGE_V));
+    done(&r, &d);
+
+    assert_int_equal(read_json("{\"buses\": [{\"equipment_id\": \"A\", \"equipment_id\": \"B\"}]}",
+                               &r, &d),
+                     0);
+    assert_int_equal(d.errors, 1);
+    assert_string_equal(d.items[0].path, "buses[0].equipment_id");
+    assert_null(r.rows[0].text[TW_F_EQUIPMENT_ID]);
+    assert_true(r.rows[0].invalid & (1u << TW_F_EQUIPMENT_ID));
     done(&r, &d);
 }
 
@@ -658,7 +685,8 @@ int main(void)
         cmocka_unit_test(empty_cell_should_be_absent_not_zero),
         cmocka_unit_test(ppe_category_should_be_a_whole_number),
         cmocka_unit_test(service_equipment_should_accept_yes_no_words_in_any_case),
-        cmocka_unit_test(unterminated_quote_should_be_reported_with_its_line_and_fail_the_read),
+        cmocka_unit_test(
+            unterminated_quote_should_be_reported_with_its_line_and_taint_every_row),
         cmocka_unit_test(a_stray_quote_should_be_reported_with_its_line),
         cmocka_unit_test(a_duplicated_column_should_be_an_error_and_read_no_rows),
         cmocka_unit_test(a_row_with_more_cells_than_the_header_should_be_an_error),
