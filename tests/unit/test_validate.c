@@ -241,15 +241,17 @@ static void a_voltage_outside_the_tables_should_be_an_error(void **state)
 {
     (void)state;
     fixture f;
+    /* NFPA 70E Table 130.4(E)(a) starts at 50 V and ends at 800 kV; ASTM D120 class 4
+     * gloves end at 36 kV maximum use voltage. */
     check_csv(&f, HEAD "LV-1,max,2025-06-30,24,,,300,1\n"          /* below 50 V */
-                       "HV-1,max,2025-06-30,69000,8,910,3000,\n"   /* above 36 kV */
+                       "HV-1,max,2025-06-30,900000,8,910,3000,\n"  /* above both */
                        "MV-1,max,2025-06-30,13800,8,910,3000,\n"); /* in the tables */
     const tw_diag *g =
         find_diag(&f, "no approach-boundary row in NFPA 70E Table 130.4(E)(a) for 24 V");
     assert_non_null(g);
     assert_int_equal(g->line, 2);
-    assert_non_null(find_diag(&f, "for 69000 V"));
-    assert_non_null(find_diag(&f, "no rubber insulating glove class in ASTM D120 for 69000 V"));
+    assert_non_null(find_diag(&f, "Table 130.4(E)(a) for 900000 V"));
+    assert_non_null(find_diag(&f, "no rubber insulating glove class in ASTM D120 for 900000 V"));
     assert_int_equal(f.errors, 3);
     assert_int_equal(f.r.rows[2].errors, 0);
     fixture_free(&f);
