@@ -5,17 +5,6 @@
 #include "tw_rules.h"
 #include "tw_scenario.h"
 
-#ifndef TW_HAVE_RULES
-/* TEST STAND-IN: remove when rules.c is linked */
-/* NFPA 70E Table 130.7(C)(15)(c) minimum arc ratings by PPE category, cal/cm2 (from memory,
- * verify against the edition in force). */
-double tw_ppe_category_rating(int category)
-{
-    static const double rating[] = {0, 4, 8, 25, 40};
-    return category >= 1 && category <= 4 ? rating[category] : 0;
-}
-#endif
-
 static int read_csv(const char *text, tw_results *r, tw_diags *d)
 {
     tw_diags_init(d);

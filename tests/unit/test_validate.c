@@ -7,50 +7,6 @@
 #include "tw_site.h"
 #include "tw_validate.h"
 
-#ifndef TW_HAVE_RULES
-/* TEST STAND-IN: remove when rules.c is linked */
-/* Only the voltage ranges matter to these tests; the boundary distances are left out. Ranges
- * after NFPA 70E Table 130.4(E)(a), AC phase to phase (from memory, verify against the edition
- * in force). */
-const tw_approach *tw_approach_for_voltage(double volts)
-{
-    static const tw_approach rows[] = {
-        {50, 150, 0, NULL, 0, NULL, 0, NULL},
-        {151, 750, 0, NULL, 0, NULL, 0, NULL},
-        {751, 15000, 0, NULL, 0, NULL, 0, NULL},
-        {15001, 36000, 0, NULL, 0, NULL, 0, NULL},
-    };
-    for (size_t i = 0; i < sizeof rows / sizeof rows[0]; i++)
-        if (volts >= rows[i].v_min && volts <= rows[i].v_max)
-            return &rows[i];
-    return NULL;
-}
-#endif
-
-#ifndef TW_HAVE_RULES
-/* TEST STAND-IN: remove when rules.c is linked */
-/* ASTM D120 maximum use voltages, AC (from memory, verify against the edition in force). */
-const tw_glove_class *tw_glove_class_for_voltage(double volts)
-{
-    static const tw_glove_class classes[] = {{"00", 500},    {"0", 1000},   {"1", 7500},
-                                             {"2", 17000},   {"3", 26500},  {"4", 36000}};
-    for (size_t i = 0; volts > 0 && i < sizeof classes / sizeof classes[0]; i++)
-        if (volts <= classes[i].max_use_v_ac)
-            return &classes[i];
-    return NULL;
-}
-#endif
-
-#ifndef TW_HAVE_RULES
-/* TEST STAND-IN: remove when rules.c is linked */
-/* NFPA 70E Table 130.7(C)(15)(c) (from memory, verify against the edition in force). */
-double tw_ppe_category_rating(int category)
-{
-    static const double rating[] = {0, 4, 8, 25, 40};
-    return category >= 1 && category <= 4 ? rating[category] : 0;
-}
-#endif
-
 /* A study, its buses and findings, read and validated in one go. */
 typedef struct {
     tw_results r;
