@@ -1,5 +1,5 @@
 /*
- * tw_layout.h - label layouts: size, margins and regions, loaded from layouts/*.json.
+ * tw_layout.h - label layouts: size, margins and regions, loaded from layouts/NAME.json.
  *
  * Our own schema (docs/layouts.md). All lengths are held in PDF points (1/72 in); boxes are
  * relative to the lower-left corner of one label. A sheet layout tiles the label columns x rows
