@@ -22,9 +22,9 @@
 /* Space left between neighbouring regions of a label, in points. */
 #define TW_LAYOUT_GAP_PT 4.0
 
-/* The QR box holds the symbol with its quiet zone and, under it, one line of the footer font
- * size with the start of the content hash; this is that line's height in font sizes. */
-#define TW_QR_CAPTION_LINES 1.5
+/* The QR box holds the symbol with its quiet zone and, under it, up to two lines of the footer
+ * font size with the start of the content hash; this is their height in font sizes. */
+#define TW_QR_CAPTION_LINES 2.5
 
 /* Smallest text on a label, in points. 6 pt is common practice for the smallest legible print
  * on equipment labels; ANSI Z535.4 asks that safety signs be legible at a safe viewing
@@ -45,8 +45,8 @@
 /* The built-in layout; layouts/4x6.json holds the same text (a unit test keeps them equal). */
 static const char default_json[] =
     "{\"name\":\"4x6\",\"units\":\"in\",\"label\":{\"width\":4,\"height\":6},"
-    "\"margin\":0.125,\"header\":{\"height\":0.75,\"font_pt\":24},\"body\":{\"font_pt\":9},"
-    "\"qr\":{\"size\":1.25},\"footer\":{\"height\":0.85,\"font_pt\":6.5},"
+    "\"margin\":0.125,\"header\":{\"height\":0.7,\"font_pt\":24},\"body\":{\"font_pt\":9},"
+    "\"qr\":{\"size\":1.15},\"footer\":{\"height\":0.75,\"font_pt\":6.5},"
     "\"min_font_pt\":6,\"printer_dpi\":203}";
 
 typedef struct {
