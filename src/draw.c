@@ -384,28 +384,36 @@ double tw_qr_module_pt(int modules, double side, double dpi, int min_dots)
     return m >= 0.5 ? m : 0;
 }
 
-void tw_draw_qr(HPDF_Page p, const tw_qr *q, double x, double y, double module)
+/* The symbol with its quiet zone as one 1-bit image, one pixel per module, scaled by a whole
+ * number of printer dots: a few hundred bytes per label where rectangles would take kilobytes
+ * of content (and most of the run time). Viewers and printers scale such images without
+ * smoothing (/Interpolate is false by default, ISO 32000-1 8.9.5.3). */
+int tw_draw_qr(HPDF_Doc pdf, HPDF_Page p, const tw_qr *q, double x, double y, double module)
 {
     int n = q->width + 2 * TW_QR_QUIET_MODULES;
-    tw_draw_fill(p, (tw_box){x, y, n * module, n * module}, TW_WHITE);
-    set_fill(p, TW_BLACK);
+    size_t stride = ((size_t)n + 7) / 8;
+    unsigned char *bits = calloc((size_t)n, stride);
+    if (!bits)
+        return -1;
     for (int r = 0; r < q->width; r++) {
         const unsigned char *row = q->dark + (size_t)r * (size_t)q->width;
-        double ry = y + (n - TW_QR_QUIET_MODULES - 1 - r) * module;
-        for (int c = 0; c < q->width;) {
-            if (!row[c]) {
-                c++;
-                continue;
+        unsigned char *out = bits + (size_t)(r + TW_QR_QUIET_MODULES) * stride;
+        for (int c = 0; c < q->width; c++)
+            if (row[c]) {
+                int b = c + TW_QR_QUIET_MODULES;
+                out[b >> 3] |= (unsigned char)(0x80 >> (b & 7));
             }
-            int c0 = c;
-            while (c < q->width && row[c])
-                c++;
-            HPDF_Page_Rectangle(p, (HPDF_REAL)(x + (TW_QR_QUIET_MODULES + c0) * module),
-                                (HPDF_REAL)ry, (HPDF_REAL)((c - c0) * module),
-                                (HPDF_REAL)module);
-        }
     }
-    HPDF_Page_Fill(p); /* one fill for every run: no seams between abutting rectangles */
+    /* libharu's CCITT G4 writer takes set bits as black when black_is1 is false (checked by
+     * rendering with pdftoppm and decoding with zbarimg in test_pdf). */
+    HPDF_Image img = HPDF_Image_LoadRaw1BitImageFromMem(pdf, bits, (HPDF_UINT)n, (HPDF_UINT)n,
+                                                        (HPDF_UINT)stride, HPDF_FALSE, HPDF_TRUE);
+    free(bits);
+    if (!img)
+        return -1;
+    HPDF_Page_DrawImage(p, img, (HPDF_REAL)x, (HPDF_REAL)y, (HPDF_REAL)(n * module),
+                        (HPDF_REAL)(n * module));
+    return 0;
 }
 
 /* ---- hazard header ------------------------------------------------------------------------ */

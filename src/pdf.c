@@ -556,7 +556,7 @@ static void draw_qr_box(HPDF_Page p, const tw_label_doc *doc, const plan *pl)
     double side = q.w, top = q.y + q.h;
     if (pl->qr.dark) {
         double s = (pl->qr.width + 2 * TW_QR_QUIET_MODULES) * pl->module;
-        tw_draw_qr(p, &pl->qr, q.x + (side - s) / 2, top - s, pl->module);
+        tw_draw_qr(doc->pdf.pdf, p, &pl->qr, q.x + (side - s) / 2, top - s, pl->module);
         top -= s;
     } else {
         double inset = side * 0.15;
