@@ -63,6 +63,10 @@ typedef struct {
 /* Line spacing as a multiple of the font size. */
 #define TW_LEADING 1.2
 
+/* 1 when s is printable UTF-8: well-formed, no overlong forms or surrogates, no control
+ * characters. Every text drawn must pass this; callers check before planning a page. */
+int tw_text_ok(const char *s);
+
 /* Width of s[0..len) at size pt, in points. */
 double tw_text_width(HPDF_Font f, double pt, const char *s, size_t len);
 

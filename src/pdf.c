@@ -109,29 +109,6 @@ static int is_required(tw_label_key k)
     return 0;
 }
 
-/* Printable UTF-8: well-formed sequences, no control characters. */
-static int text_ok(const char *s)
-{
-    const unsigned char *p = (const unsigned char *)s;
-    while (*p) {
-        unsigned char c = *p;
-        size_t n = c < 0x80 ? 1 : (c & 0xE0) == 0xC0 ? 2 : (c & 0xF0) == 0xE0 ? 3
-                                 : (c & 0xF8) == 0xF0 ? 4 : 0;
-        if (n == 0 || (n == 1 && (c < 0x20 || c == 0x7F)))
-            return 0;
-        if (n == 2 && c < 0xC2)
-            return 0; /* overlong */
-        for (size_t i = 1; i < n; i++)
-            if ((p[i] & 0xC0) != 0x80)
-                return 0;
-        if ((n == 3 && c == 0xE0 && p[1] < 0xA0) || (n == 4 && c == 0xF0 && p[1] < 0x90) ||
-            (n == 4 && c > 0xF4) || (n == 3 && c == 0xED && p[1] >= 0xA0))
-            return 0; /* overlong, beyond U+10FFFF, or a surrogate */
-        p += n;
-    }
-    return 1;
-}
-
 static int has(const tw_label *l, tw_label_key k)
 {
     return l->value[k] && l->value[k][0];
@@ -139,7 +116,7 @@ static int has(const tw_label *l, tw_label_key k)
 
 static const char *label_id(const tw_label *l)
 {
-    return has(l, TW_L_EQUIPMENT_ID) && text_ok(l->value[TW_L_EQUIPMENT_ID])
+    return has(l, TW_L_EQUIPMENT_ID) && tw_text_ok(l->value[TW_L_EQUIPMENT_ID])
                ? l->value[TW_L_EQUIPMENT_ID]
                : "(no equipment ID)";
 }
@@ -157,7 +134,7 @@ static int check_label(const tw_label *l, const char *payload, char *err, size_t
 {
     const char *id = label_id(l);
     for (int k = 0; k < TW_L_COUNT; k++)
-        if (l->value[k] && !text_ok(l->value[k])) {
+        if (l->value[k] && !tw_text_ok(l->value[k])) {
             snprintf(err, errlen, "label %s: %s is not printable UTF-8 text", id,
                      tw_label_key_name((tw_label_key)k));
             return -1;
@@ -604,7 +581,7 @@ static int plan_footer(tw_label_doc *doc, const tw_site *site, char *err, size_t
     size_t len = strlen(msg(M_CAUTIONS)) + 1;
     for (size_t i = 0; site && i < site->caution_count; i++) {
         const char *c = site->cautions[i] ? site->cautions[i] : "";
-        if (!text_ok(c)) {
+        if (!tw_text_ok(c)) {
             snprintf(err, errlen, "site caution %zu is not printable UTF-8 text", i + 1);
             return -1;
         }
