@@ -98,8 +98,8 @@ double tw_baseline_drop(HPDF_Font f, double pt);
 double tw_qr_module_pt(int modules, double side, double dpi, int min_dots);
 
 /* Draw the symbol with its white quiet zone (TW_QR_QUIET_MODULES) as a square of
- * (width + 2 * quiet) * module points whose lower-left corner is (x, y): one 1-bit image, one
- * pixel per module, so edges stay sharp when module is a whole number of printer dots.
+ * (width + 2 * quiet) * module points whose lower-left corner is (x, y): one black-and-white
+ * image, one pixel per module, so edges stay sharp when module is a whole number of printer dots.
  * 0, or -1 when out of memory (or libharu failed; its error is recorded in the document). */
 int tw_draw_qr(HPDF_Doc pdf, HPDF_Page p, const tw_qr *q, double x, double y, double module);
 

@@ -406,35 +406,30 @@ double tw_qr_module_pt(int modules, double side, double dpi, int min_dots)
     return m >= 0.5 ? m : 0;
 }
 
-/* The symbol with its quiet zone as one 1-bit image, one pixel per module, scaled by a whole
- * number of printer dots: a few hundred bytes per label where rectangles would take kilobytes
- * of content (and most of the run time). Viewers and printers scale such images without
- * smoothing (/Interpolate is false by default, ISO 32000-1 8.9.5.3). */
+/* The symbol as one grey image on a white quiet zone, one pixel per module, each pixel either
+ * black or white, Flate-compressed with the rest of the document (a few hundred bytes where
+ * rectangles would take kilobytes of content and most of the run time). Scaled by a whole
+ * number of printer dots, it prints with sharp edges; /Interpolate is false by default (ISO
+ * 32000-1 8.9.5.3), so viewers do not smooth it. (libharu's 1-bit loader is not used: it
+ * leaks a dictionary when a document is freed unsaved.) */
 int tw_draw_qr(HPDF_Doc pdf, HPDF_Page p, const tw_qr *q, double x, double y, double module)
 {
     int n = q->width + 2 * TW_QR_QUIET_MODULES;
-    size_t stride = ((size_t)n + 7) / 8;
-    unsigned char *bits = calloc((size_t)n, stride);
-    if (!bits)
+    size_t w = (size_t)q->width;
+    unsigned char *px = malloc(w * w);
+    if (!px)
         return -1;
-    for (int r = 0; r < q->width; r++) {
-        const unsigned char *row = q->dark + (size_t)r * (size_t)q->width;
-        unsigned char *out = bits + (size_t)(r + TW_QR_QUIET_MODULES) * stride;
-        for (int c = 0; c < q->width; c++)
-            if (row[c]) {
-                int b = c + TW_QR_QUIET_MODULES;
-                out[b >> 3] |= (unsigned char)(0x80 >> (b & 7));
-            }
-    }
-    /* libharu's CCITT G4 writer takes set bits as black when black_is1 is false (checked by
-     * rendering with pdftoppm and decoding with zbarimg in test_pdf). */
-    HPDF_Image img = HPDF_Image_LoadRaw1BitImageFromMem(pdf, bits, (HPDF_UINT)n, (HPDF_UINT)n,
-                                                        (HPDF_UINT)stride, HPDF_FALSE, HPDF_TRUE);
-    free(bits);
+    for (size_t i = 0; i < w * w; i++)
+        px[i] = q->dark[i] ? 0 : 0xFF;
+    HPDF_Image img = HPDF_LoadRawImageFromMem(pdf, px, (HPDF_UINT)w, (HPDF_UINT)w,
+                                              HPDF_CS_DEVICE_GRAY, 8);
+    free(px);
     if (!img)
         return -1;
-    HPDF_Page_DrawImage(p, img, (HPDF_REAL)x, (HPDF_REAL)y, (HPDF_REAL)(n * module),
-                        (HPDF_REAL)(n * module));
+    tw_draw_fill(p, (tw_box){x, y, n * module, n * module}, TW_WHITE); /* quiet zone */
+    double quiet = TW_QR_QUIET_MODULES * module;
+    HPDF_Page_DrawImage(p, img, (HPDF_REAL)(x + quiet), (HPDF_REAL)(y + quiet),
+                        (HPDF_REAL)(q->width * module), (HPDF_REAL)(q->width * module));
     return 0;
 }
 
