@@ -3,6 +3,8 @@
 #   make            build build/tagwright
 #   make demo       install missing Debian packages, build, write the demo outputs to out/
 #   make check      unit tests (cmocka), end-to-end tests, and the same under ASan+UBSan
+#   make fuzz       every libFuzzer harness in tests/fuzz/ for FUZZ_SECONDS each (clang)
+#   make valgrind   the end-to-end tests with the binary run under valgrind
 #   make install    PREFIX=/usr/local DESTDIR=
 #
 # Every src/*.c except main.c goes into build/libtagwright.a; every tests/unit/test_*.c is one
@@ -28,7 +30,7 @@ TEST_SRC = $(wildcard tests/unit/test_*.c)
 TESTS    = $(TEST_SRC:tests/unit/%.c=$(BUILD)/tests/%)
 BIN      = $(BUILD)/tagwright
 
-.PHONY: all demo check unit e2e asan-check deps install clean fuzz valgrind bench
+.PHONY: all demo check unit e2e asan-check deps install clean fuzz fuzz-build valgrind bench
 all: $(BIN)
 
 $(BUILD)/obj/%.o: src/%.c $(wildcard include/*.h) | $(BUILD)/obj
@@ -73,6 +75,32 @@ install: $(BIN)
 	install -m 755 $(BIN) $(DESTDIR)$(PREFIX)/bin/tagwright
 	install -m 644 layouts/*.json $(DESTDIR)$(DATADIR)/layouts/
 	install -m 644 docs/tagwright.1 $(DESTDIR)$(PREFIX)/share/man/man1/tagwright.1
+
+# libFuzzer harnesses (tests/fuzz/fuzz_*.c), built with clang and ASan+UBSan into build-fuzz/,
+# each run for FUZZ_SECONDS on a working copy of its seed corpus (docs/fuzzing.md).
+FUZZ_SECONDS ?= 10
+FUZZ_SRC      = $(wildcard tests/fuzz/fuzz_*.c)
+FUZZ_BINS     = $(FUZZ_SRC:tests/fuzz/%.c=$(BUILD)/fuzz/%)
+FUZZ_SAN      = -fsanitize=address,undefined -fno-sanitize-recover=all
+
+$(BUILD)/fuzz/%: tests/fuzz/%.c tests/fuzz/fuzz_common.h $(BUILD)/libtagwright.a
+	@mkdir -p $(@D)
+	$(CC) $(CPPFLAGS) -Itests/fuzz $(CFLAGS) -fsanitize=fuzzer $(LDFLAGS) -o $@ $< \
+	  $(BUILD)/libtagwright.a $(LDLIBS)
+
+fuzz-build: $(FUZZ_BINS)
+
+fuzz:
+	$(MAKE) CC=clang BUILD=build-fuzz OPT="-O2 -g -fno-omit-frame-pointer" \
+	  EXTRA_CFLAGS="-fsanitize=fuzzer-no-link $(FUZZ_SAN)" EXTRA_LDFLAGS="$(FUZZ_SAN)" fuzz-build
+	tests/fuzz/run build-fuzz $(FUZZ_SECONDS)
+
+# The end-to-end tests with every run of the binary wrapped in valgrind (tests/e2e/lib.sh).
+VALGRIND = valgrind -q --error-exitcode=99 --leak-check=full \
+	  --errors-for-leak-kinds=definite,indirect
+
+valgrind: $(BIN)
+	TW_WRAP="$(VALGRIND)" TW_BIN=$(CURDIR)/$(BIN) tests/e2e/run
 
 clean:
 	rm -rf build build-asan build-fuzz out

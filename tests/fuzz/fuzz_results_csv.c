@@ -1,0 +1,18 @@
+/* fuzz_results_csv.c - libFuzzer harness: results CSV reader, then validate and derive. */
+#include <stdint.h>
+
+#include "fuzz_common.h"
+
+int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size);
+
+int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
+{
+    tw_diags d;
+    tw_diags_init(&d);
+    tw_results r;
+    int rc = tw_results_read_csv("fuzz.csv", (const char *)data, size, &r, &d);
+    fuzz_results_pipeline(rc, &r, &d);
+    tw_results_free(&r);
+    tw_diags_free(&d);
+    return 0;
+}
