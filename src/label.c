@@ -398,6 +398,12 @@ static double derive_energy(deriver *D)
         if (need_number(D, TW_F_INCIDENT_ENERGY_CAL, "NFPA 70E 130.5(H)", &e) != 0)
             return NAN;
         e = tw_round_energy_up(e);
+        if (!isfinite(e)) { /* rounding overflowed: never print "nan" on a label */
+            report(D, TW_ERROR, TW_F_INCIDENT_ENERGY_CAL,
+                   "%g cal/cm2 is too large to round; expected a finite incident energy",
+                   r->num[TW_F_INCIDENT_ENERGY_CAL]);
+            return NAN;
+        }
         D->out->incident_energy_cal = e;
         D->out->arc_rating_cal = e;
         setf(D, TW_L_INCIDENT_ENERGY, "%.1f cal/cm2", e);

@@ -277,6 +277,12 @@ void tw_row_set_number(tw_row *r, const tw_column *c, double v, tw_diags *d)
         return;
     }
     double cv = v * c->to_canonical;
+    if (!isfinite(cv)) { /* e.g. 1e307 ft: finite as given, infinite in mm */
+        tw_row_diag(d, r, TW_ERROR, f, c->name,
+                    "expected a number that stays finite in %s, got %g", canonical_unit(f), v);
+        mark_invalid(r, f);
+        return;
+    }
     if (!(r->present & bit(f))) {
         r->num[f] = cv;
         r->present |= bit(f);
