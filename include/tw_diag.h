@@ -7,7 +7,8 @@
  *
  * Ownership: the list owns copies of every string given to tw_diag_add(). tw_diags_free()
  * accepts a zeroed or already-freed list. If memory runs out, the finding is counted but its
- * text is dropped (the counts stay right, so a run still fails closed).
+ * text is dropped (the counts stay right, so a run still fails closed). The same happens past
+ * TW_MAX_FINDINGS findings, so that a file with millions of bad cells cannot exhaust memory.
  */
 #ifndef TW_DIAG_H
 #define TW_DIAG_H
@@ -16,6 +17,9 @@
 #include <stdio.h>
 
 typedef enum { TW_WARNING = 0, TW_ERROR = 1 } tw_severity;
+
+/* Most findings kept with their text (documented in docs/limits.md); later ones are counted. */
+#define TW_MAX_FINDINGS 100000
 
 /* Where a value came from. line is 1-based, 0 when unknown; path is a JSON path or NULL. */
 typedef struct {
@@ -57,7 +61,12 @@ void tw_diag_add(tw_diags *d, tw_severity sev, const tw_source *src, const char 
 /* Print one finding as "FILE:LINE: error|warning: EQUIPMENT_ID: field: message". */
 void tw_diag_print(const tw_diag *g, FILE *out);
 
-/* Print every finding in the order added. */
+/* Print every finding in the order added, then a line saying how many more were counted but
+ * not kept (past TW_MAX_FINDINGS, or out of memory), if any. */
 void tw_diags_print(const tw_diags *d, FILE *out);
+
+/* Findings counted but not kept, and the line tw_diags_print() ends with for them. */
+size_t tw_diags_unlisted(const tw_diags *d);
+void tw_diags_print_unlisted(const tw_diags *d, FILE *out);
 
 #endif

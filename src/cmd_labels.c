@@ -112,6 +112,7 @@ static void print_findings(const tw_diags *d, const tw_bus **sel, size_t n, int 
     for (size_t i = 0; i < d->count; i++)
         if (is_selected(&d->items[i], sel, n, all))
             tw_diag_print(&d->items[i], stderr);
+    tw_diags_print_unlisted(d, stderr);
 }
 
 /* Derive every label; returns how many were refused (errors and not --draft). */

@@ -28,6 +28,8 @@ void tw_diags_free(tw_diags *d)
 
 static tw_diag *diag_slot(tw_diags *d)
 {
+    if (d->count >= TW_MAX_FINDINGS)
+        return NULL;
     if (d->count == d->cap) {
         size_t cap = d->cap ? d->cap * 2 : 16;
         tw_diag *items = realloc(d->items, cap * sizeof *items);
@@ -85,8 +87,23 @@ void tw_diag_print(const tw_diag *g, FILE *out)
     fprintf(out, "%s\n", g->message ? g->message : "(out of memory)");
 }
 
+size_t tw_diags_unlisted(const tw_diags *d)
+{
+    size_t counted = d->errors + d->warnings;
+    return counted > d->count ? counted - d->count : 0;
+}
+
+void tw_diags_print_unlisted(const tw_diags *d, FILE *out)
+{
+    size_t n = tw_diags_unlisted(d);
+    if (n)
+        fprintf(out, "... and %zu more finding%s, counted but not listed (at most %d are kept)\n",
+                n, n == 1 ? "" : "s", TW_MAX_FINDINGS);
+}
+
 void tw_diags_print(const tw_diags *d, FILE *out)
 {
     for (size_t i = 0; i < d->count; i++)
         tw_diag_print(&d->items[i], out);
+    tw_diags_print_unlisted(d, out);
 }

@@ -373,6 +373,10 @@ int tw_layout_load_mem(const char *name, const char *data, size_t len, tw_layout
     const char *src_name = name ? name : "layout";
     reader r = {src_name, d, 0, NULL};
     size_t errors_before = d->errors;
+    if (tw_json_value_bound(data, len) > TW_MAX_JSON_VALUES) {
+        fail(&r, "$", "more than %d JSON values; expected at most that", TW_MAX_JSON_VALUES);
+        return -1;
+    }
     cJSON *root = cJSON_ParseWithLength(data, len);
     if (!root || !cJSON_IsObject(root)) {
         fail(&r, "$", "not a JSON object (check brackets, commas and quotes)");

@@ -148,6 +148,10 @@ int tw_manifest_load_mem(const char *name, const char *data, size_t len, tw_mani
     load_ctx c = {name, d, 0};
     memset(m, 0, sizeof *m);
     m->lock_fd = -1;
+    if (tw_json_value_bound(data, len) > TW_MAX_JSON_VALUES) {
+        load_error(&c, "$", NULL, "more than 5000000 JSON values; expected at most that");
+        return -1;
+    }
     cJSON *root = cJSON_ParseWithLength(data, len);
     if (!root) {
         load_error(&c, "$", NULL, "not valid JSON");

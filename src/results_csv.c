@@ -16,6 +16,9 @@
 /* Largest cell accepted, in bytes (documented in docs/limits.md). Also the largest piece of a
  * line handed to libcsv at once, so a runaway quoted cell is noticed early. */
 #define TW_MAX_CELL_BYTES (64 * 1024)
+/* Most columns in the header (documented in docs/limits.md): a header of millions of unknown
+ * columns would otherwise cost memory and a warning each. */
+#define TW_MAX_COLUMNS 4096
 
 typedef struct {
     tw_results *out;
@@ -99,6 +102,13 @@ static void on_cell(void *s, size_t len, void *data)
     if (len > TW_MAX_CELL_BYTES) {
         file_error(rd, rd->line,
                    "cell longer than 64 KiB; expected at most that; reading stops here");
+        rd->stop = 1;
+        return;
+    }
+    if (!rd->have_header && rd->ncells >= TW_MAX_COLUMNS) {
+        file_error(rd, rd->line,
+                   "header row has more than 4096 columns; expected at most that; reading stops "
+                   "here");
         rd->stop = 1;
         return;
     }

@@ -308,6 +308,12 @@ int tw_results_read_json(const char *name, const char *data, size_t len, tw_resu
         tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "out of memory");
         return -1;
     }
+    if (tw_json_value_bound(data, len) > TW_MAX_JSON_VALUES) {
+        text_error(out, d, data, 0,
+                   "more than 5000000 JSON values; expected at most that in one file (split the "
+                   "study, or use CSV)");
+        return -1;
+    }
     size_t skip = len >= 3 && memcmp(data, "\xEF\xBB\xBF", 3) == 0 ? 3 : 0;
     const char *end = NULL;
     cJSON *root = cJSON_ParseWithLengthOpts(data + skip, len - skip, &end, 0);

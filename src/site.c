@@ -465,6 +465,11 @@ int tw_site_load_mem(const char *name, const char *data, size_t len, tw_site *s,
         finding(&L, TW_ERROR, NULL, NULL, "out of memory");
         return -1;
     }
+    if (data && tw_json_value_bound(data, len) > TW_MAX_JSON_VALUES) {
+        finding(&L, TW_ERROR, NULL, NULL, "more than %d JSON values; expected at most that",
+                TW_MAX_JSON_VALUES);
+        return -1;
+    }
     const char *end = NULL;
     cJSON *root = data ? cJSON_ParseWithLengthOpts(data, len, &end, 0) : NULL;
     if (!root) {

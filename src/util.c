@@ -82,6 +82,26 @@ int tw_parse_double(const char *s, double *out)
     return 0;
 }
 
+size_t tw_json_value_bound(const char *data, size_t len)
+{
+    size_t n = 1;
+    int in_string = 0;
+    for (size_t i = 0; i < len; i++) {
+        char c = data[i];
+        if (in_string) {
+            if (c == '\\')
+                i++;
+            else if (c == '"')
+                in_string = 0;
+        } else if (c == '"') {
+            in_string = 1;
+        } else if (c == '[' || c == '{' || c == ',') {
+            n++;
+        }
+    }
+    return n;
+}
+
 int tw_strcaseeq(const char *a, const char *b)
 {
     for (; *a && *b; a++, b++)

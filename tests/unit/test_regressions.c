@@ -6,6 +6,7 @@
 #include "tw_results.h"
 #include "tw_scenario.h"
 #include "tw_site.h"
+#include "tw_util.h"
 
 /* Read CSV text, group it and derive the first bus's label. Returns tw_label_derive's result
  * (or -2 when reading failed); *errors receives every error finding counted. */
@@ -69,11 +70,84 @@ static void length_that_overflows_in_millimetres_should_be_a_reader_error(void *
     tw_diags_free(&d);
 }
 
+/* A million unnamed header columns cost a stored cell and a warning each (245 MB for an 8 MB
+ * line); the header is now limited to 4096 columns. */
+static void header_with_more_than_4096_columns_should_stop_with_one_error(void **state)
+{
+    (void)state;
+    size_t n = 5000;
+    char *csv = malloc(16 + 2 * n);
+    assert_non_null(csv);
+    strcpy(csv, "equipment_id");
+    size_t len = strlen(csv);
+    for (size_t i = 0; i < n; i++)
+        csv[len++] = ',';
+    csv[len++] = '\n';
+    tw_diags d;
+    tw_diags_init(&d);
+    tw_results r;
+    assert_int_equal(tw_results_read_csv("wide.csv", csv, len, &r, &d), 0);
+    assert_int_equal(d.errors, 1);
+    assert_int_equal(d.warnings, 0);
+    assert_non_null(strstr(d.items[0].message, "4096 columns"));
+    tw_results_free(&r);
+    tw_diags_free(&d);
+    free(csv);
+}
+
+/* Millions of bad cells made millions of stored findings; past TW_MAX_FINDINGS they are only
+ * counted, and the count stays right so the run still fails. */
+static void findings_past_the_limit_should_be_counted_not_kept(void **state)
+{
+    (void)state;
+    tw_diags d;
+    tw_diags_init(&d);
+    for (size_t i = 0; i < TW_MAX_FINDINGS + 5; i++)
+        tw_diag_add(&d, TW_ERROR, NULL, NULL, "f", "bad %zu", i);
+    assert_int_equal(d.count, TW_MAX_FINDINGS);
+    assert_int_equal(d.errors, TW_MAX_FINDINGS + 5);
+    assert_int_equal(tw_diags_unlisted(&d), 5);
+    tw_diags_free(&d);
+}
+
+/* 50 MB of "[0,0,...]" took 2 GB to parse; JSON input is now limited by its number of values,
+ * counted before parsing, with commas inside strings not counted. */
+static void json_with_more_values_than_the_limit_should_not_be_parsed(void **state)
+{
+    (void)state;
+    static const char five[] = "{\"a\": [1, 2, \"x,y\"]}"; /* object, array, 1, 2, "x,y" */
+    static const char one[] = "\"\\\",[\"";                 /* the string "\",[" */
+    assert_int_equal(tw_json_value_bound(five, strlen(five)), 5);
+    assert_int_equal(tw_json_value_bound(one, strlen(one)), 1);
+    size_t n = TW_MAX_JSON_VALUES + 1;
+    char *json = malloc(2 * n + 16);
+    assert_non_null(json);
+    size_t len = 0;
+    json[len++] = '[';
+    for (size_t i = 0; i < n; i++) {
+        json[len++] = '0';
+        json[len++] = ',';
+    }
+    json[len - 1] = ']';
+    tw_diags d;
+    tw_diags_init(&d);
+    tw_results r;
+    assert_int_equal(tw_results_read_json("big.json", json, len, &r, &d), -1);
+    assert_int_equal(d.errors, 1);
+    assert_non_null(strstr(d.items[0].message, "JSON values"));
+    tw_results_free(&r);
+    tw_diags_free(&d);
+    free(json);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(incident_energy_too_large_to_round_should_get_no_posting_label),
         cmocka_unit_test(length_that_overflows_in_millimetres_should_be_a_reader_error),
+        cmocka_unit_test(header_with_more_than_4096_columns_should_stop_with_one_error),
+        cmocka_unit_test(findings_past_the_limit_should_be_counted_not_kept),
+        cmocka_unit_test(json_with_more_values_than_the_limit_should_not_be_parsed),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
