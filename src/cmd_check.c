@@ -4,11 +4,29 @@
 #include <stdio.h>
 
 #include "tw_cli.h"
+#include "tw_date.h"
+#include "tw_label.h"
 #include "tw_study.h"
 
 static const char check_usage[] =
     "usage: tagwright check RESULTS [--site SITE.json]\n"
     "Prints FILE:LINE: error|warning: EQUIPMENT_ID: field: message for every finding.\n";
+
+/* A bus that passes validation is derived as `labels` would derive it, so that check reports
+ * what labels would refuse (e.g. a boundary too large to print); buses with errors already have
+ * findings, and deriving them would only repeat those. */
+static void derive_clean_buses(tw_study *st)
+{
+    char today[11];
+    tw_date_format(tw_date_today(), today);
+    for (size_t i = 0; i < st->buses.count; i++) {
+        if (tw_bus_errors(&st->buses.buses[i]) > 0)
+            continue;
+        tw_label label = {0};
+        tw_label_derive(&st->buses.buses[i], &st->site, today, &label, &st->diags);
+        tw_label_free(&label);
+    }
+}
 
 int cmd_check(int argc, char **argv)
 {
@@ -33,6 +51,8 @@ int cmd_check(int argc, char **argv)
         return tw_usage_error("check", "expected one results file (CSV or JSON)");
     tw_study st;
     int rc = tw_study_load(&st, argv[optind], site);
+    if (rc == 0)
+        derive_clean_buses(&st);
     tw_diags_print(&st.diags, stdout);
     printf("%zu error%s, %zu warning%s", st.diags.errors, st.diags.errors == 1 ? "" : "s",
            st.diags.warnings, st.diags.warnings == 1 ? "" : "s");

@@ -105,10 +105,13 @@ int tw_print_labels(const tw_label *labels, size_t n, const tw_print_opts *o, ch
         goto done_nomanifest;
     }
     if (tw_manifest_open(mpath, &m, &md) != 0) {
-        snprintf(err, errlen, "%s", md.count && md.items[0].message ? md.items[0].message
-                                                                   : "cannot open the manifest");
-        if (md.count && md.items[0].path)
-            snprintf(err, errlen, "%s:%s: %s", mpath, md.items[0].path, md.items[0].message);
+        const tw_diag *g = md.count ? &md.items[0] : NULL;
+        const char *msg = g && g->message ? g->message : "cannot open the manifest";
+        if (g && g->path) /* name the field too: "labels[0]: equipment_id: ..." */
+            snprintf(err, errlen, "%s:%s: %s%s%s", mpath, g->path, g->field ? g->field : "",
+                     g->field ? ": " : "", msg);
+        else
+            snprintf(err, errlen, "%s", msg);
         rc = TW_EXIT_DATA;
         goto done_nomanifest;
     }
