@@ -53,6 +53,7 @@ int cmd_check(int argc, char **argv)
     int rc = tw_study_load(&st, argv[optind], site);
     if (rc == 0)
         derive_clean_buses(&st);
+    tw_diags_sort(&st.diags);
     tw_diags_print(&st.diags, stdout);
     printf("%zu error%s, %zu warning%s", st.diags.errors, st.diags.errors == 1 ? "" : "s",
            st.diags.warnings, st.diags.warnings == 1 ? "" : "s");

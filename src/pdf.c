@@ -570,9 +570,16 @@ static void draw_label(HPDF_Page p, const tw_label_doc *doc, const plan *pl, con
     draw_block(p, &doc->pdf, &pl->study, pl->study_box);
     draw_qr_box(p, doc, pl);
     draw_footer(p, doc);
-    if (l->draft)
+    if (l->draft) {
         tw_draw_watermark(p, doc->pdf.bold, (tw_box){0, 0, lay->label_w, lay->label_h},
                           msg(M_WATERMARK), TW_SAFETY_RED);
+        /* The same words once more, level, in the bottom margin: readable by anyone holding
+         * the label sideways and by text extraction, which splits the diagonal copy. */
+        const char *t = msg(M_WATERMARK);
+        double pt = fmax(lay->min_pt, 6), w = tw_text_width(doc->pdf.bold, pt, t, strlen(t));
+        tw_draw_text(p, doc->pdf.bold, pt, (lay->label_w - w) / 2, 2, t, strlen(t),
+                     TW_SAFETY_RED);
+    }
 }
 
 /* Fit the cautions (ours, then the site's, one per line) into the footer once per document. */

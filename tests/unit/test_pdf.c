@@ -16,39 +16,6 @@
 #include "tw_qr.h"
 #include "tw_util.h"
 
-#ifndef TW_HAVE_LABEL
-/* TEST STAND-IN: remove when label.c is linked */
-static const char *const key_names[TW_L_COUNT] = {
-    "signal_word", "equipment_id", "description", "location", "nominal_voltage",
-    "arc_flash_boundary", "boundary_note", "incident_energy", "working_distance",
-    "ppe_category", "min_arc_rating", "ppe_level", "no_ppe_adequate", "limited_approach",
-    "restricted_approach", "glove_class", "available_fault", "service_clearing_time",
-    "service_label_date", "study_id", "study_date", "scenario", "review_due", "revision_note",
-};
-
-const char *tw_label_key_name(tw_label_key k)
-{
-    return (unsigned)k < TW_L_COUNT ? key_names[k] : "?";
-}
-
-int tw_label_set(tw_label *l, tw_label_key k, const char *value)
-{
-    char *copy = tw_strdup(value);
-    if (!copy)
-        return -1;
-    free(l->value[k]);
-    l->value[k] = copy;
-    return 0;
-}
-
-void tw_label_free(tw_label *l)
-{
-    for (int k = 0; k < TW_L_COUNT; k++)
-        free(l->value[k]);
-    memset(l, 0, sizeof *l);
-}
-#endif
-
 /* ---- fixtures ----------------------------------------------------------------------------- */
 
 static char dir[64];
