@@ -53,6 +53,55 @@ void tw_atomic_forget(const char *tmp)
             pending[i] = NULL;
 }
 
+/* realpath() of the directory of path, "/", and its base name: the same string for two names
+ * of one file that may not exist yet. NULL when the directory does not resolve. */
+static char *resolve_parent(const char *path)
+{
+    char *c1 = tw_strdup(path), *c2 = tw_strdup(path), *dir = NULL, *out = NULL;
+    if (c1 && c2 && (dir = realpath(dirname(c1), NULL)) != NULL)
+        out = tw_asprintf("%s/%s", dir, basename(c2));
+    free(dir);
+    free(c1);
+    free(c2);
+    return out;
+}
+
+/* An output that does not exist yet: its directory must exist and be writable, and it must not
+ * be another output or input named differently (e.g. --manifest naming the PDF). */
+static int new_output_ok(const char *path, const char *const *inputs, char *err, size_t errlen)
+{
+    char *copy = tw_strdup(path);
+    if (!copy) {
+        snprintf(err, errlen, "%s: out of memory", path);
+        return -1;
+    }
+    const char *dir = dirname(copy);
+    struct stat ds;
+    int rc = 0;
+    if (stat(dir, &ds) != 0 || !S_ISDIR(ds.st_mode)) {
+        snprintf(err, errlen, "%s: the directory %s does not exist; expected an existing directory",
+                 path, dir);
+        rc = -1;
+    } else if (access(dir, W_OK) != 0) {
+        snprintf(err, errlen, "%s: cannot write in the directory %s: %s", path, dir,
+                 strerror(errno));
+        rc = -1;
+    }
+    free(copy);
+    char *me = rc == 0 ? resolve_parent(path) : NULL;
+    for (size_t i = 0; me && inputs && inputs[i]; i++) {
+        char *other = resolve_parent(inputs[i]);
+        if (other && strcmp(me, other) == 0) {
+            snprintf(err, errlen, "%s: is also given as %s; expected different files", path,
+                     inputs[i]);
+            rc = -1;
+        }
+        free(other);
+    }
+    free(me);
+    return rc;
+}
+
 int tw_output_path_ok(const char *path, const char *const *inputs, char *err, size_t errlen)
 {
     struct stat out;
@@ -60,8 +109,13 @@ int tw_output_path_ok(const char *path, const char *const *inputs, char *err, si
         snprintf(err, errlen, "output path is empty");
         return -1;
     }
-    if (stat(path, &out) != 0)
-        return 0; /* does not exist yet: fine; the directory is checked on open */
+    if (stat(path, &out) != 0) {
+        if (errno != ENOENT) {
+            snprintf(err, errlen, "%s: cannot use as an output: %s", path, strerror(errno));
+            return -1;
+        }
+        return new_output_ok(path, inputs, err, errlen);
+    }
     if (S_ISDIR(out.st_mode)) {
         snprintf(err, errlen, "%s: is a directory, expected an output file name", path);
         return -1;

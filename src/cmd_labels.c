@@ -142,7 +142,13 @@ static int load_layout(const labels_args *a, const tw_site *site, tw_layout *l, 
 static int run(tw_study *st, const labels_args *a)
 {
     char err[1024] = "";
-    const char *inputs[] = {a->results, a->site, a->manifest, NULL};
+    /* Every file the run reads or writes besides the PDF (NULLs left out: the list ends at the
+     * first NULL). The layout is a file only when it names one; a shipped name never clashes. */
+    const char *inputs[5] = {NULL};
+    const char *named[] = {a->results, a->site, a->manifest, a->layout};
+    for (size_t i = 0, k = 0; i < sizeof named / sizeof named[0]; i++)
+        if (named[i])
+            inputs[k++] = named[i];
     if (tw_output_path_ok(a->out, inputs, err, sizeof err) != 0) {
         fprintf(stderr, "tagwright labels: %s\n", err);
         return TW_EXIT_IO;

@@ -112,7 +112,9 @@ int tw_print_labels(const tw_label *labels, size_t n, const tw_print_opts *o, ch
                      g->field ? ": " : "", msg);
         else
             snprintf(err, errlen, "%s", msg);
-        rc = TW_EXIT_DATA;
+        /* a finding at a JSON path is about the content; without one the file could not be
+         * locked or read */
+        rc = g && g->path ? TW_EXIT_DATA : TW_EXIT_IO;
         goto done_nomanifest;
     }
     doc = tw_label_doc_new(o->layout, o->site, o->print_date, err, errlen);

@@ -505,7 +505,8 @@ int tw_site_load(const char *path, tw_site *s, tw_diags *d)
     if (!data) {
         if (tw_site_defaults(s) != 0)
             memset(s, 0, sizeof *s);
-        tw_diag_add(d, TW_ERROR, NULL, NULL, NULL, "%s", err);
+        tw_source src = {path, 0, NULL}; /* so the finding is not printed as "-" */
+        tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "%s", err);
         return -1;
     }
     int rc = tw_site_load_mem(path, data, len, s, d);
