@@ -98,10 +98,12 @@ static void on_cell(void *s, size_t len, void *data)
     csv_reader *rd = data;
     if (rd->stop)
         return;
+    long started = rd->cell_line; /* the previous cell ended, and this one began, there */
     rd->cell_line = rd->line;
     if (len > TW_MAX_CELL_BYTES) {
-        file_error(rd, rd->line,
-                   "cell longer than 64 KiB; expected at most that; reading stops here");
+        file_error(rd, started,
+                   "cell starting here is longer than 64 KiB; expected at most that; reading "
+                   "stops here");
         rd->stop = 1;
         return;
     }

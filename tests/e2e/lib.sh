@@ -18,10 +18,13 @@ check() { # check "description" command...
     if "$@" >/dev/null 2>&1; then ok "$what"; else fail "$what"; fi
 }
 has_tool() { command -v "$1" >/dev/null 2>&1; }
+# TW_WRAP: a command every run is wrapped in, e.g. valgrind (make valgrind sets it).
+# shellcheck disable=SC2206
+TW_WRAP_CMD=(${TW_WRAP:-})
 # run CMD...: runs tagwright, keeps stdout/stderr/status in $OUT $ERR $RC
 run() {
     set +e
-    "$TW_BIN" "$@" >"$TW_TMP/stdout" 2>"$TW_TMP/stderr"
+    "${TW_WRAP_CMD[@]}" "$TW_BIN" "$@" >"$TW_TMP/stdout" 2>"$TW_TMP/stderr"
     RC=$?
     set -e
     OUT=$(cat "$TW_TMP/stdout")
