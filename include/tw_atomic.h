@@ -1,9 +1,12 @@
 /*
  * tw_atomic.h - outputs that appear whole or not at all.
  *
- * A file is written to a temporary name in the target directory, flushed, fsync'd and renamed
+ * A file is written to a temporary file in the target directory, flushed, fsync'd and renamed
  * over the target; the directory is then fsync'd. A failed or interrupted run leaves any earlier
- * output intact. Temporary files still open when SIGINT/SIGTERM/SIGHUP arrives are removed.
+ * output intact. Where the system allows (Linux O_TMPFILE), tw_atomic_open() creates the file
+ * without a name, so even SIGKILL leaves nothing behind; otherwise temporary files still open
+ * when SIGINT/SIGTERM/SIGHUP arrives are removed. Outputs that belong together (a PDF and its
+ * manifest) are prepared first and then committed together with those signals held back.
  */
 #ifndef TW_ATOMIC_H
 #define TW_ATOMIC_H
@@ -26,6 +29,15 @@ int tw_atomic_open(tw_atomic *a, const char *target, char *err, size_t errlen);
 
 /* Flush, fsync, rename over the target. 0, or -1 with a message (the temporary is removed). */
 int tw_atomic_commit(tw_atomic *a, char *err, size_t errlen);
+
+/* Flush and fsync the file, which stays open (and unnamed, where it has no name) until it is
+ * committed. 0, or -1 with a message (a is aborted). */
+int tw_atomic_prepare(tw_atomic *a, char *err, size_t errlen);
+
+/* Replace the targets of n prepared (or still open) files in order, with SIGINT, SIGTERM and
+ * SIGHUP held back until all are done, so that a signal cannot replace some and not others.
+ * 0, or -1 with a message (the files not yet renamed are removed). */
+int tw_atomic_commit_all(tw_atomic *const *a, size_t n, char *err, size_t errlen);
 
 /* Close and remove the temporary file. Accepts an unopened or committed struct. */
 void tw_atomic_abort(tw_atomic *a);

@@ -18,6 +18,7 @@
 
 #include <hpdf.h>
 
+#include "tw_atomic.h"
 #include "tw_layout.h"
 #include "tw_qr.h"
 #include "tw_rules.h"
@@ -38,6 +39,10 @@ int tw_pdf_doc_check(const tw_pdf_doc *d, char *err, size_t errlen);
 /* Write the document atomically to path (temporary file beside it, then rename). 0, or -1
  * with a message in err; on failure no file is left behind and an earlier path is intact. */
 int tw_pdf_doc_save(tw_pdf_doc *d, const char *path, char *err, size_t errlen);
+
+/* The same, stopping before the rename: a is left prepared (tw_atomic_prepare) for the caller
+ * to commit with other outputs, or aborted on failure. 0, or -1 with a message in err. */
+int tw_pdf_doc_write(tw_pdf_doc *d, const char *path, tw_atomic *a, char *err, size_t errlen);
 
 /* Free the document; accepts NULL and a zeroed or closed struct. */
 void tw_pdf_doc_close(tw_pdf_doc *d);

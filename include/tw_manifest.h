@@ -15,6 +15,7 @@
 
 #include <stddef.h>
 
+#include "tw_atomic.h"
 #include "tw_diag.h"
 #include "tw_map.h"
 
@@ -72,6 +73,10 @@ char *tw_manifest_changes(const char *old_content, const char *new_content);
 
 /* Write atomically. 0, or -1 with a message in err. */
 int tw_manifest_save(tw_manifest *m, char *err, size_t errlen);
+
+/* The same, leaving a prepared for the caller to commit with the PDF it records
+ * (tw_atomic_commit_all), or aborted on failure. */
+int tw_manifest_write(tw_manifest *m, tw_atomic *a, char *err, size_t errlen);
 
 /* Release the lock and free everything. Accepts a zeroed manifest. */
 void tw_manifest_close(tw_manifest *m);

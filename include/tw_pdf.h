@@ -15,6 +15,7 @@
 
 #include <stddef.h>
 
+#include "tw_atomic.h"
 #include "tw_label.h"
 #include "tw_layout.h"
 #include "tw_site.h"
@@ -36,6 +37,11 @@ int tw_label_doc_count(const tw_label_doc *doc);
 
 /* Write the PDF atomically to path. 0, or -1 with a message in err. */
 int tw_label_doc_save(tw_label_doc *doc, const char *path, char *err, size_t errlen);
+
+/* The same, leaving a prepared for the caller to commit together with the manifest
+ * (tw_atomic_commit_all), or aborted on failure. */
+int tw_label_doc_write(tw_label_doc *doc, const char *path, tw_atomic *a, char *err,
+                       size_t errlen);
 
 void tw_label_doc_free(tw_label_doc *doc);
 

@@ -1,4 +1,5 @@
 /* atomic.c - outputs written whole or not at all (see tw_atomic.h). */
+#define _GNU_SOURCE /* O_TMPFILE */
 #include "tw_atomic.h"
 
 #include <errno.h>
@@ -26,14 +27,23 @@ static void on_signal(int sig)
     raise(sig);
 }
 
+/* A signal the process was started with ignored (nohup, a background job) stays ignored. */
+static void handle(int sig)
+{
+    struct sigaction old;
+    if (sigaction(sig, NULL, &old) == 0 && old.sa_handler == SIG_IGN)
+        return;
+    signal(sig, on_signal);
+}
+
 static void install_handlers(void)
 {
     if (handlers_installed)
         return;
     handlers_installed = 1;
-    signal(SIGINT, on_signal);
-    signal(SIGTERM, on_signal);
-    signal(SIGHUP, on_signal);
+    handle(SIGINT);
+    handle(SIGTERM);
+    handle(SIGHUP);
 }
 
 static void remember(char *tmp)
@@ -196,9 +206,74 @@ int tw_atomic_publish(const char *tmp, const char *target, char *err, size_t err
     return 0;
 }
 
+/* An unnamed file in target's directory (Linux O_TMPFILE): until it is linked in at commit it
+ * has no name, so a run killed even by SIGKILL leaves nothing behind. -1 where the kernel or
+ * file system lacks it, or /proc (needed to link it) is not mounted: a named temporary is used
+ * then, removed on SIGINT/SIGTERM/SIGHUP only. */
+static int open_unnamed(const char *target)
+{
+#ifdef O_TMPFILE
+    if (access("/proc/self/fd", X_OK) != 0)
+        return -1;
+    char *copy = tw_strdup(target);
+    if (!copy)
+        return -1;
+    int fd = open(dirname(copy), O_TMPFILE | O_WRONLY | O_CLOEXEC, 0666);
+    free(copy);
+    return fd;
+#else
+    (void)target;
+    return -1;
+#endif
+}
+
+/* Give the unnamed file fd a temporary name beside target, registered for removal on signals
+ * until published. NULL with a message in err. */
+static char *link_unnamed(int fd, const char *target, char *err, size_t errlen)
+{
+    char proc[64];
+    snprintf(proc, sizeof proc, "/proc/self/fd/%d", fd);
+    char *c1 = tw_strdup(target), *c2 = tw_strdup(target), *name = NULL;
+    int e = ENOMEM;
+    for (int i = 0; c1 && c2 && i < 100; i++) {
+        name = tw_asprintf("%s/.%s.%ld-%d.tmp", dirname(c1), basename(c2), (long)getpid(), i);
+        if (name && linkat(AT_FDCWD, proc, AT_FDCWD, name, AT_SYMLINK_FOLLOW) == 0)
+            break;
+        e = name ? errno : ENOMEM;
+        free(name);
+        name = NULL;
+        if (e != EEXIST)
+            break;
+        free(c1); /* dirname() and basename() may have changed the copies */
+        free(c2);
+        c1 = tw_strdup(target);
+        c2 = tw_strdup(target);
+    }
+    free(c1);
+    free(c2);
+    if (!name)
+        snprintf(err, errlen, "%s: cannot write: %s", target, strerror(e));
+    else
+        remember(name);
+    return name;
+}
+
 int tw_atomic_open(tw_atomic *a, const char *target, char *err, size_t errlen)
 {
     memset(a, 0, sizeof *a);
+    int fd = open_unnamed(target);
+    if (fd >= 0) {
+        a->target = tw_strdup(target);
+        a->fp = fdopen(fd, "wb");
+        if (!a->target || !a->fp) {
+            snprintf(err, errlen, "%s: cannot write: %s", target, strerror(errno));
+            if (!a->fp)
+                close(fd);
+            tw_atomic_abort(a);
+            return -1;
+        }
+        return 0;
+    }
     a->tmp = tw_atomic_tmp_path(target, err, errlen);
     if (!a->tmp)
         return -1;
@@ -212,10 +287,30 @@ int tw_atomic_open(tw_atomic *a, const char *target, char *err, size_t errlen)
     return 0;
 }
 
+int tw_atomic_prepare(tw_atomic *a, char *err, size_t errlen)
+{
+    if (!a->fp) {
+        snprintf(err, errlen, "%s: nothing was written", a->target ? a->target : "output");
+        return -1;
+    }
+    if (fflush(a->fp) != 0 || ferror(a->fp) || fsync(fileno(a->fp)) != 0) {
+        snprintf(err, errlen, "%s: write failed: %s", a->target, strerror(errno));
+        tw_atomic_abort(a);
+        return -1;
+    }
+    return 0;
+}
+
 int tw_atomic_commit(tw_atomic *a, char *err, size_t errlen)
 {
-    int bad = fflush(a->fp) != 0 || ferror(a->fp);
-    bad |= fclose(a->fp) != 0;
+    if (tw_atomic_prepare(a, err, errlen) != 0)
+        return -1;
+    /* An unnamed file gets its name only now, while its descriptor is still open. */
+    if (!a->tmp && !(a->tmp = link_unnamed(fileno(a->fp), a->target, err, errlen))) {
+        tw_atomic_abort(a);
+        return -1;
+    }
+    int bad = fclose(a->fp) != 0;
     a->fp = NULL;
     if (bad) {
         snprintf(err, errlen, "%s: write failed: %s", a->target, strerror(errno));
@@ -228,6 +323,30 @@ int tw_atomic_commit(tw_atomic *a, char *err, size_t errlen)
     free(a->target);
     a->target = NULL;
     return rc;
+}
+
+int tw_atomic_commit_all(tw_atomic *const *a, size_t n, char *err, size_t errlen)
+{
+    size_t done = 0;
+    for (size_t i = 0; i < n; i++)
+        if (tw_atomic_prepare(a[i], err, errlen) != 0)
+            goto fail;
+    sigset_t held, old;
+    sigemptyset(&held);
+    sigaddset(&held, SIGINT);
+    sigaddset(&held, SIGTERM);
+    sigaddset(&held, SIGHUP);
+    sigprocmask(SIG_BLOCK, &held, &old);
+    for (; done < n; done++)
+        if (tw_atomic_commit(a[done], err, errlen) != 0)
+            break;
+    sigprocmask(SIG_SETMASK, &old, NULL); /* a signal held back is delivered here */
+    if (done == n)
+        return 0;
+fail:
+    for (size_t i = 0; i < n; i++)
+        tw_atomic_abort(a[i]);
+    return -1;
 }
 
 void tw_atomic_abort(tw_atomic *a)

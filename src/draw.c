@@ -1,6 +1,7 @@
 /* draw.c - PDF documents and drawing primitives shared by every PDF (see tw_draw.h). */
 #include "tw_draw.h"
 
+#include <errno.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -141,25 +142,49 @@ HPDF_Page tw_pdf_doc_page(tw_pdf_doc *d, double w, double h)
 
 int tw_pdf_doc_save(tw_pdf_doc *d, const char *path, char *err, size_t errlen)
 {
+    tw_atomic a;
+    if (tw_pdf_doc_write(d, path, &a, err, errlen) != 0)
+        return -1;
+    return tw_atomic_commit(&a, err, errlen);
+}
+
+int tw_pdf_doc_write(tw_pdf_doc *d, const char *path, tw_atomic *a, char *err, size_t errlen)
+{
     char why[200];
+    memset(a, 0, sizeof *a);
     if (tw_pdf_doc_check(d, why, sizeof why) != 0) {
         snprintf(err, errlen, "%s: not written: %s", path, why);
         return -1;
     }
-    char *tmp = tw_atomic_tmp_path(path, err, errlen);
-    if (!tmp)
-        return -1;
-    if (HPDF_SaveToFile(d->pdf, tmp) != HPDF_OK || d->error) {
+    /* Through memory and tw_atomic_open(), so that the file being written has no name until it
+     * is complete (a run killed midway leaves nothing; see tw_atomic.h). */
+    if (HPDF_SaveToStream(d->pdf) != HPDF_OK || d->error) {
         tw_pdf_doc_check(d, why, sizeof why);
         snprintf(err, errlen, "%s: cannot write: %s", path, d->error ? why : "PDF library error");
-        unlink(tmp);
-        tw_atomic_forget(tmp);
-        free(tmp);
         return -1;
     }
-    int rc = tw_atomic_publish(tmp, path, err, errlen);
-    free(tmp);
-    return rc;
+    HPDF_ResetStream(d->pdf);
+    if (tw_atomic_open(a, path, err, errlen) != 0)
+        return -1;
+    HPDF_BYTE buf[16384];
+    for (;;) {
+        HPDF_UINT32 n = sizeof buf;
+        HPDF_STATUS st = HPDF_ReadFromStream(d->pdf, buf, &n);
+        if (n > 0 && fwrite(buf, 1, n, a->fp) != n) {
+            snprintf(err, errlen, "%s: write failed: %s", path, strerror(errno));
+            tw_atomic_abort(a);
+            return -1;
+        }
+        if (st == HPDF_STREAM_EOF || (st == HPDF_OK && n == 0))
+            break;
+        if (st != HPDF_OK) {
+            snprintf(err, errlen, "%s: cannot write: PDF library error %#lx", path,
+                     (unsigned long)st);
+            tw_atomic_abort(a);
+            return -1;
+        }
+    }
+    return tw_atomic_prepare(a, err, errlen);
 }
 
 void tw_pdf_doc_close(tw_pdf_doc *d)

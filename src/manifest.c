@@ -398,6 +398,15 @@ static cJSON *entry_json(const tw_manifest_entry *e)
 
 int tw_manifest_save(tw_manifest *m, char *err, size_t errlen)
 {
+    tw_atomic a;
+    if (tw_manifest_write(m, &a, err, errlen) != 0)
+        return -1;
+    return tw_atomic_commit(&a, err, errlen);
+}
+
+int tw_manifest_write(tw_manifest *m, tw_atomic *a, char *err, size_t errlen)
+{
+    memset(a, 0, sizeof *a);
     cJSON *root = cJSON_CreateObject();
     cJSON *labels = root ? cJSON_AddArrayToObject(root, "labels") : NULL;
     int bad = !labels || !cJSON_AddStringToObject(root, "format", MANIFEST_FORMAT) ||
@@ -414,9 +423,14 @@ int tw_manifest_save(tw_manifest *m, char *err, size_t errlen)
     }
     size_t n = strlen(text);
     text[n] = '\n'; /* cJSON_Print's buffer has room for its own NUL; replace it */
-    int rc = tw_atomic_write(m->path, text, n + 1, err, errlen);
+    int rc = tw_atomic_open(a, m->path, err, errlen);
+    if (rc == 0 && fwrite(text, 1, n + 1, a->fp) != n + 1) {
+        snprintf(err, errlen, "%s: write failed: %s", m->path, strerror(errno));
+        tw_atomic_abort(a);
+        rc = -1;
+    }
     free(text);
-    return rc;
+    return rc == 0 ? tw_atomic_prepare(a, err, errlen) : -1;
 }
 
 void tw_manifest_close(tw_manifest *m)

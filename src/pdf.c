@@ -757,6 +757,17 @@ int tw_label_doc_save(tw_label_doc *doc, const char *path, char *err, size_t err
     return tw_pdf_doc_save(&doc->pdf, path, err, errlen);
 }
 
+int tw_label_doc_write(tw_label_doc *doc, const char *path, tw_atomic *a, char *err,
+                       size_t errlen)
+{
+    memset(a, 0, sizeof *a);
+    if (doc->count == 0) {
+        snprintf(err, errlen, "%s: not written: no labels", path);
+        return -1;
+    }
+    return tw_pdf_doc_write(&doc->pdf, path, a, err, errlen);
+}
+
 void tw_label_doc_free(tw_label_doc *doc)
 {
     if (!doc)

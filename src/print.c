@@ -54,7 +54,7 @@ static int draw_all(tw_label_doc *doc, const tw_label *labels, size_t n, const t
 }
 
 static int record_all(tw_manifest *m, const tw_label *labels, size_t n, const tw_print_opts *o,
-                      const placed *p, char *err, size_t errlen)
+                      const placed *p, tw_atomic *out, char *err, size_t errlen)
 {
     char *copy = tw_strdup(o->out_pdf);
     if (!copy) {
@@ -87,7 +87,7 @@ static int record_all(tw_manifest *m, const tw_label *labels, size_t n, const tw
         }
     }
     free(copy);
-    return tw_manifest_save(m, err, errlen) == 0 ? TW_EXIT_OK : TW_EXIT_IO;
+    return tw_manifest_write(m, out, err, errlen) == 0 ? TW_EXIT_OK : TW_EXIT_IO;
 }
 
 int tw_print_labels(const tw_label *labels, size_t n, const tw_print_opts *o, char *err,
@@ -100,6 +100,9 @@ int tw_print_labels(const tw_label *labels, size_t n, const tw_print_opts *o, ch
     tw_diags_init(&md);
     int rc = TW_EXIT_IO;
     tw_label_doc *doc = NULL;
+    tw_atomic pdf_out, manifest_out;
+    memset(&pdf_out, 0, sizeof pdf_out);
+    memset(&manifest_out, 0, sizeof manifest_out);
     if (!mpath || !p.payloads || !p.pages) {
         snprintf(err, errlen, "out of memory");
         goto done_nomanifest;
@@ -120,12 +123,24 @@ int tw_print_labels(const tw_label *labels, size_t n, const tw_print_opts *o, ch
     doc = tw_label_doc_new(o->layout, o->site, o->print_date, err, errlen);
     if (!doc)
         goto done;
+    /* Both outputs are written in full first, then both renamed at once: a run that fails or
+     * is killed leaves the earlier PDF and manifest as they were, never one without the other
+     * (the PDF is renamed first, so a SIGKILL between the two renames, microseconds apart,
+     * leaves at worst a manifest that lags behind and is brought up to date by printing
+     * again). */
     rc = draw_all(doc, labels, n, &m, o, &p, err, errlen);
     if (rc == TW_EXIT_OK)
-        rc = tw_label_doc_save(doc, o->out_pdf, err, errlen) == 0 ? TW_EXIT_OK : TW_EXIT_IO;
+        rc = tw_label_doc_write(doc, o->out_pdf, &pdf_out, err, errlen) == 0 ? TW_EXIT_OK
+                                                                            : TW_EXIT_IO;
     if (rc == TW_EXIT_OK)
-        rc = record_all(&m, labels, n, o, &p, err, errlen);
+        rc = record_all(&m, labels, n, o, &p, &manifest_out, err, errlen);
+    if (rc == TW_EXIT_OK) {
+        tw_atomic *const both[] = {&pdf_out, &manifest_out};
+        rc = tw_atomic_commit_all(both, 2, err, errlen) == 0 ? TW_EXIT_OK : TW_EXIT_IO;
+    }
 done:
+    tw_atomic_abort(&pdf_out);
+    tw_atomic_abort(&manifest_out);
     tw_label_doc_free(doc);
     tw_manifest_close(&m);
 done_nomanifest:

@@ -1,0 +1,113 @@
+#!/usr/bin/env bash
+# t_atomic.sh - nothing lost: a labels run killed midway (SIGTERM, SIGINT, SIGHUP, SIGKILL; while
+# it computes and while it is writing its output) leaves the earlier PDF and manifest exactly as
+# they were and no partial or temporary file beside them. The large input is generated here;
+# TW_ATOMIC_BUSES sets its size (default 2000 buses).
+source "$(dirname "$0")/lib.sh"
+
+N=${TW_ATOMIC_BUSES:-2000}
+DIR="$TW_TMP/atomic"
+mkdir -p "$DIR"
+HEADER="equipment_id,description,location,study_id,study_date,scenario,nominal_voltage_v,working_distance_in,incident_energy_cal_cm2,arc_flash_boundary_in"
+# Fictional buses of one study, energies from 1 to 30.9 cal/cm2.
+awk -v n="$N" -v h="$HEADER" 'BEGIN { print h
+    for (i = 0; i < n; i++)
+        printf "AT-PNL-%05d,Panel %d,Building %d,AT-2025-1,2025-01-31,max,480,18,%.1f,%d\n",
+               i, i, i % 40, 1 + (i % 300) / 10.0, 20 + i % 100 }' >"$TW_TMP/big.csv"
+head -n 4 "$TW_TMP/big.csv" >"$TW_TMP/small.csv"
+
+PDF="$DIR/labels.pdf"
+MANIFEST="$DIR/labels.manifest.json"
+run labels "$TW_TMP/small.csv" --out "$PDF" --date 2025-02-28
+expect_rc 0 "the earlier run prints 3 labels"
+before_pdf=$(sha256sum <"$PDF")
+before_manifest=$(sha256sum <"$MANIFEST")
+cp "$PDF" "$TW_TMP/earlier.pdf"
+cp "$MANIFEST" "$TW_TMP/earlier.manifest.json"
+
+# both_new: a signal held back while both outputs were being renamed ends the run just after;
+# then the PDF and the manifest must both be the complete new ones.
+both_new() {
+    [ "$(pdfinfo "$PDF" 2>/dev/null | sed -n 's/^Pages: *//p')" = "$N" ] &&
+        grep -q "\"AT-PNL-$(printf '%05d' $((N - 1)))\"" "$MANIFEST"
+}
+
+# only_outputs: the directory holds the PDF, the manifest and its lock file, nothing else.
+only_outputs() {
+    local f
+    for f in "$DIR"/* "$DIR"/.[!.]*; do
+        [ -e "$f" ] || continue
+        case $(basename "$f") in
+        labels.pdf | labels.manifest.json | labels.manifest.json.lock) ;;
+        *) echo "  unexpected file: $f"; return 1 ;;
+        esac
+    done
+}
+
+# writing PID: 1 while the process has a file open in $DIR other than the manifest lock.
+writing() {
+    ls -l "/proc/$1/fd" 2>/dev/null | grep -F "$DIR/" | grep -vq '\.lock$'
+}
+
+# kill_run SIGNAL WHEN: start a large run, send SIGNAL when WHEN is "writing" (a file is open in
+# the output directory) or after WHEN seconds; sets KILLED=1 when the signal ended the run.
+kill_run() {
+    local sig=$1 when=$2 waited=0
+    # job control on, so that the background run does not start with SIGINT ignored
+    set -m
+    "${TW_WRAP_CMD[@]}" "$TW_BIN" labels "$TW_TMP/big.csv" --out "$PDF" --date 2025-03-01 \
+        >/dev/null 2>"$TW_TMP/kill.err" &
+    local pid=$!
+    set +m
+    if [ "$when" = writing ]; then
+        while kill -0 "$pid" 2>/dev/null && ! writing "$pid" && [ $waited -lt 60000 ]; do
+            sleep 0.002
+            waited=$((waited + 2))
+        done
+    else
+        sleep "$when"
+    fi
+    WAS_WRITING=0
+    if writing "$pid"; then WAS_WRITING=1; fi
+    kill "-$sig" "$pid" 2>/dev/null
+    set +e
+    wait "$pid" 2>/dev/null
+    local rc=$?
+    set -e
+    KILLED=0
+    if [ $rc -gt 128 ]; then KILLED=1; fi
+}
+
+for sig in TERM INT HUP KILL; do
+    for when in 0.3 writing; do
+        what="SIG$sig $([ "$when" = writing ] && echo "while writing" || echo "after ${when}s")"
+        kill_run "$sig" "$when"
+        if [ $KILLED -eq 1 ] && [ "$when" = writing ] && [ $WAS_WRITING -eq 0 ]; then
+            fail "$what: the run was killed before it opened its output; nothing was tested"
+        elif [ $KILLED -eq 1 ]; then
+            ok "$what: the run was killed midway$([ $WAS_WRITING -eq 1 ] && echo ", its output open")"
+        else
+            fail "$what: the run ended before the signal; raise TW_ATOMIC_BUSES"
+        fi
+        if [ "$(sha256sum <"$PDF")" = "$before_pdf" ]; then
+            ok "$what: the earlier PDF is intact"
+            [ "$(sha256sum <"$MANIFEST")" = "$before_manifest" ] &&
+                ok "$what: the earlier manifest is intact" ||
+                fail "$what: the earlier manifest changed without the PDF"
+        elif both_new; then
+            ok "$what: the signal came as both outputs were being replaced; both are the new ones"
+            cp "$TW_TMP/earlier.pdf" "$PDF"
+            cp "$TW_TMP/earlier.manifest.json" "$MANIFEST"
+        else
+            fail "$what: the earlier PDF changed and the new outputs are not complete"
+            cp "$TW_TMP/earlier.pdf" "$PDF"
+            cp "$TW_TMP/earlier.manifest.json" "$MANIFEST"
+        fi
+        only_outputs && ok "$what: no partial or temporary file left" ||
+            fail "$what: files left behind"
+    done
+done
+if has_tool qpdf; then
+    check "the earlier PDF still passes qpdf --check" qpdf --check "$PDF"
+fi
+finish
