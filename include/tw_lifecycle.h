@@ -26,12 +26,12 @@
  * "switchboard", "mcc", "panelboard", "cable", "open-air"; any case) at a nominal voltage in
  * volts. Returns 0 when the table has no row for it (unknown type, below 208 V, above 15 kV,
  * or MCC/panelboard above 1 kV). *row_name, when not NULL, is set to the row used. */
-double tw_distance_exponent_for(const char *equipment_type, double volts, const char **row_name);
+double tw_rescale_exponent_for(const char *equipment_type, double volts, const char **row_name);
 
 /* Arc-flash boundary in mm: the distance at which energy_cal (at working distance
  * distance_mm) falls to 1.2 cal/cm2 with exponent x. NAN when any input is not finite and
  * above 0. */
-double tw_afb_mm(double energy_cal, double distance_mm, double exponent);
+double tw_rescale_afb_mm(double energy_cal, double distance_mm, double exponent);
 
 /* ---- rescaling after a setting change ---------------------------------------------------- */
 

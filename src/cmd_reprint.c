@@ -131,7 +131,7 @@ static int exponent_of(const tw_row *g, const char *eq, double *x, tw_diags *d)
     double volts = 0;
     row_number(g, TW_F_NOMINAL_VOLTAGE_V, &volts);
     const char *type = tw_row_has(g, TW_F_EQUIPMENT_TYPE) ? g->text[TW_F_EQUIPMENT_TYPE] : NULL;
-    *x = tw_distance_exponent_for(type, volts, NULL);
+    *x = tw_rescale_exponent_for(type, volts, NULL);
     if (*x > 0)
         return 0;
     row_error(d, g, eq, TW_F_DISTANCE_EXPONENT,

@@ -39,7 +39,7 @@ static const exponent_row exponent_table[] = {
 #define IEEE1584_2002_LV_MAX_V 1000.0
 #define IEEE1584_2002_MAX_V 15000.0
 
-double tw_distance_exponent_for(const char *equipment_type, double volts, const char **row_name)
+double tw_rescale_exponent_for(const char *equipment_type, double volts, const char **row_name)
 {
     if (!equipment_type || !(volts >= IEEE1584_2002_MIN_V && volts <= IEEE1584_2002_MAX_V))
         return 0;
@@ -62,7 +62,7 @@ static int positive(double v)
 
 /* NFPA 70E definition of the arc-flash boundary (energy 1.2 cal/cm2) with the IEEE 1584
  * distance relation E ~ 1/D^x. */
-double tw_afb_mm(double energy_cal, double distance_mm, double exponent)
+double tw_rescale_afb_mm(double energy_cal, double distance_mm, double exponent)
 {
     if (!positive(energy_cal) || !positive(distance_mm) || !positive(exponent))
         return NAN;
@@ -74,7 +74,7 @@ double tw_afb_mm(double energy_cal, double distance_mm, double exponent)
 static int finish(tw_rescale *r, double new_energy)
 {
     double rounded = tw_round_energy_up(new_energy);
-    double afb = tw_afb_mm(rounded, r->working_distance_mm, r->exponent);
+    double afb = tw_rescale_afb_mm(rounded, r->working_distance_mm, r->exponent);
     if (!positive(new_energy) || !positive(afb))
         return -1;
     r->new_energy_cal = new_energy;
