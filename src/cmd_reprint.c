@@ -118,6 +118,8 @@ static int row_number(const tw_row *r, tw_field f, double *v)
 
 static void row_error(tw_diags *d, const tw_row *r, const char *eq, tw_field f, const char *msg)
 {
+    if (!d)
+        return;
     char path[512] = "";
     tw_source src = tw_row_source(r, f, path, sizeof path);
     tw_diag_add(d, TW_ERROR, &src, eq, tw_field_display(f), "%s", msg);
@@ -140,7 +142,7 @@ static int exponent_of(const tw_row *g, const char *eq, double *x, tw_diags *d)
     return -1;
 }
 
-/* Rescale the governing scenario as asked. 0, or -1 with findings. */
+/* Rescale one scenario as asked. 0, or -1 with findings (none when d is NULL). */
 static int rescale(const reprint_args *a, const tw_row *g, const char *eq, tw_rescale *r,
                    tw_diags *d)
 {
@@ -175,12 +177,29 @@ static int rescale(const reprint_args *a, const tw_row *g, const char *eq, tw_re
     return rc;
 }
 
-/* The bus with its governing scenario replaced by the revised one. */
+/*
+ * The bus as it stands after the change. By clearing time: every scenario the study gives the
+ * same clearing time as the governing one is cleared by the same device in the same time
+ * (definite time or instantaneous), so the new time applies to it too; scenarios with other
+ * times are kept as the study gave them, and if one of them now governs the label shows it
+ * (with a warning), since its time under the new settings is unknown. By energy from a re-run
+ * study: the revised scenario stands for the bus alone.
+ */
 typedef struct {
-    tw_row row;
+    tw_row *copies;             /* every scenario, revised where the change applies */
     tw_row **rows;
+    unsigned char *revised;     /* 1 for the copies the change was applied to */
+    size_t rescaled;
     tw_bus bus;
 } revised_bus;
+
+static void revised_bus_free(revised_bus *rb)
+{
+    free(rb->copies);
+    free(rb->rows);
+    free(rb->revised);
+    memset(rb, 0, sizeof *rb);
+}
 
 static void set_number(tw_row *r, tw_field f, double v)
 {
@@ -189,28 +208,61 @@ static void set_number(tw_row *r, tw_field f, double v)
     r->invalid &= ~(1u << f);
 }
 
-static int revise_bus(const tw_bus *b, const tw_rescale *r, revised_bus *out)
+static void apply(tw_row *row, const tw_rescale *r)
+{
+    set_number(row, TW_F_INCIDENT_ENERGY_CAL, r->new_energy_cal);
+    set_number(row, TW_F_ARC_FLASH_BOUNDARY_MM, r->new_boundary_mm);
+    set_number(row, TW_F_DISTANCE_EXPONENT, r->exponent);
+    if (r->new_time_s > 0)
+        set_number(row, TW_F_CLEARING_TIME_S, r->new_time_s);
+    /* A category chosen under the old settings no longer applies: the label shows energy. */
+    row->present &= ~(1u << TW_F_PPE_CATEGORY);
+    row->invalid &= ~(1u << TW_F_PPE_CATEGORY);
+}
+
+/* 1 when row is cleared in the same time as the governing scenario was. */
+static int same_time(const tw_row *row, double t)
+{
+    double rt;
+    return row_number(row, TW_F_CLEARING_TIME_S, &rt) == 0 && fabs(rt - t) <= 1e-9 * t;
+}
+
+static int revise_bus(const reprint_args *a, const tw_bus *b, const tw_rescale *r,
+                      revised_bus *out)
 {
     memset(out, 0, sizeof *out);
+    out->copies = calloc(b->count, sizeof *out->copies);
     out->rows = calloc(b->count, sizeof *out->rows);
-    if (!out->rows)
+    out->revised = calloc(b->count, 1);
+    if (!out->copies || !out->rows || !out->revised)
         return -1;
-    out->row = *b->governing;
-    set_number(&out->row, TW_F_INCIDENT_ENERGY_CAL, r->new_energy_cal);
-    set_number(&out->row, TW_F_ARC_FLASH_BOUNDARY_MM, r->new_boundary_mm);
-    set_number(&out->row, TW_F_DISTANCE_EXPONENT, r->exponent);
-    if (r->new_time_s > 0)
-        set_number(&out->row, TW_F_CLEARING_TIME_S, r->new_time_s);
-    /* A category chosen under the old settings no longer applies: the label shows energy. */
-    out->row.present &= ~(1u << TW_F_PPE_CATEGORY);
-    out->row.invalid &= ~(1u << TW_F_PPE_CATEGORY);
-    for (size_t i = 0; i < b->count; i++)
-        out->rows[i] = b->rows[i] == b->governing ? &out->row : b->rows[i];
+    size_t n = 0;
+    for (size_t i = 0; i < b->count; i++) {
+        const tw_row *row = b->rows[i];
+        tw_rescale mine;
+        int is_gov = row == b->governing;
+        if (!is_gov && a->incident_energy > 0)
+            continue;
+        out->copies[n] = *row;
+        if (is_gov || (same_time(row, r->old_time_s) && rescale(a, row, NULL, &mine, NULL) == 0)) {
+            apply(&out->copies[n], is_gov ? r : &mine);
+            out->revised[n] = 1;
+            out->rescaled++;
+        }
+        out->rows[n] = &out->copies[n];
+        n++;
+    }
     out->bus.equipment_id = b->equipment_id;
     out->bus.rows = out->rows;
-    out->bus.count = b->count;
-    out->bus.governing = tw_worst_case(out->rows, b->count);
+    out->bus.count = n;
+    out->bus.governing = tw_worst_case(out->rows, n);
     return out->bus.governing ? 0 : -1;
+}
+
+/* 1 when the scenario that governs after the change is one the change was applied to. */
+static int governs_revised(const revised_bus *rb)
+{
+    return rb->revised[rb->bus.governing - rb->copies];
 }
 
 /* ---- what the label and the manifest say -------------------------------------------------- */
@@ -220,32 +272,29 @@ static const char *text_or(const tw_label *l, tw_label_key k, const char *dflt)
     return l->value[k] ? l->value[k] : dflt;
 }
 
-static char *revision_note(const reprint_args *a, const tw_rescale *r, const tw_label *old_l,
-                           const tw_label *new_l)
+/* Short enough for the study region beside the QR code; the manifest keeps the details. */
+static char *revision_note(const reprint_args *a, const tw_rescale *r)
 {
-    const char *study = text_or(old_l, TW_L_STUDY_ID, "(unnamed)");
-    const char *e_old = text_or(old_l, TW_L_INCIDENT_ENERGY, "(none)");
-    const char *e_new = text_or(new_l, TW_L_INCIDENT_ENERGY, "(none)");
     if (a->clearing_time > 0)
-        return tw_asprintf("Revised from study %s values: clearing time %g s -> %g s (setting "
-                           "change), incident energy %s -> %s rescaled, arc-flash boundary "
-                           "recomputed", study, r->old_time_s, r->new_time_s, e_old, e_new);
-    return tw_asprintf("Revised from study %s values: incident energy %s -> %s (re-run study), "
-                       "arc-flash boundary recomputed", study, e_old, e_new);
+        return tw_asprintf("revised from the study values: clearing time %g s -> %g s (setting "
+                           "change), energy rescaled", r->old_time_s, r->new_time_s);
+    return tw_strdup("revised from the study values: incident energy from a re-run study");
 }
 
-static char *manifest_reason(const reprint_args *a, const tw_rescale *r, const char *scenario)
+static char *manifest_reason(const reprint_args *a, const tw_rescale *r, const revised_bus *rb,
+                             const tw_label *old_l, const tw_label *new_l)
 {
-    char what[512];
+    char what[1024];
+    const char *e_old = text_or(old_l, TW_L_INCIDENT_ENERGY, "(none)");
+    const char *e_new = text_or(new_l, TW_L_INCIDENT_ENERGY, "(none)");
+    const char *scen = text_or(new_l, TW_L_SCENARIO, "(unnamed)");
     if (a->clearing_time > 0)
         snprintf(what, sizeof what, "protective-device setting change: clearing time %g s -> "
-                 "%g s, incident energy %g -> %.1f cal/cm2 rescaled (scenario %s)",
-                 r->old_time_s, r->new_time_s, r->old_energy_cal,
-                 tw_round_energy_up(r->new_energy_cal), scenario);
+                 "%g s, %zu of %zu scenarios rescaled; incident energy %s -> %s (scenario %s)",
+                 r->old_time_s, r->new_time_s, rb->rescaled, rb->bus.count, e_old, e_new, scen);
     else
-        snprintf(what, sizeof what, "incident energy from a re-run study: %g -> %.1f cal/cm2 "
-                 "(scenario %s)", r->old_energy_cal, tw_round_energy_up(r->new_energy_cal),
-                 scenario);
+        snprintf(what, sizeof what, "incident energy from a re-run study: %s -> %s (scenario %s)",
+                 e_old, e_new, scen);
     return a->reason ? tw_asprintf("%s; %s", a->reason, what) : tw_strdup(what);
 }
 
@@ -278,25 +327,26 @@ static void print_warnings(const tw_rescale *r, const revised_bus *rb, const tw_
         warn("the clearing time changes by a factor of %.2f (outside 1/%g to %g); the device "
              "may clear the reduced arcing current in another time", r->new_time_s / r->old_time_s,
              TW_RESCALE_MAX_FACTOR, TW_RESCALE_MAX_FACTOR);
-    if (rb->bus.governing != &rb->row) {
+    if (!governs_revised(rb)) {
         const tw_row *g = rb->bus.governing;
-        warn("scenario '%s' (not rescaled) now governs; the label shows its values because its "
-             "clearing time under the new settings is unknown",
+        warn("scenario '%s' has another clearing time and was not rescaled; it now governs, so "
+             "the label shows its study values (its time under the new settings is unknown)",
              tw_row_has(g, TW_F_SCENARIO) ? g->text[TW_F_SCENARIO] : "(unnamed)");
     }
     if (site->show == TW_SHOW_PPE_CATEGORY && tw_row_has(rb->bus.governing, TW_F_INCIDENT_ENERGY_CAL))
         warn("the site prefers PPE categories; the revised label shows incident energy, as a "
              "category chosen for the old settings no longer applies");
-    if (r->warnings || rb->bus.governing != &rb->row)
+    if (r->warnings || !governs_revised(rb))
         warn("a re-run study is the proper source; use --incident-energy with its value");
 }
 
 static void print_changes(const reprint_args *a, const tw_label *old_l, const tw_label *new_l,
-                          const tw_rescale *r)
+                          const tw_rescale *r, const revised_bus *rb)
 {
     printf("%s: ", a->bus);
     if (a->clearing_time > 0)
-        printf("clearing time %g s -> %g s\n", r->old_time_s, r->new_time_s);
+        printf("clearing time %g s -> %g s, %zu of %zu scenarios rescaled\n", r->old_time_s,
+               r->new_time_s, rb->rescaled, rb->bus.count);
     else
         printf("incident energy from a re-run study\n");
     tw_field_change c[TW_L_COUNT];
@@ -317,7 +367,7 @@ static int make_label(tw_study *st, const reprint_args *a, const tw_bus *b, tw_l
     if (tw_label_derive(b, &st->site, a->date, old_l, &st->diags) != 0 ||
         rescale(a, b->governing, b->equipment_id, r, &st->diags) != 0)
         return TW_EXIT_DATA;
-    if (revise_bus(b, r, rb) != 0) {
+    if (revise_bus(a, b, r, rb) != 0) {
         fprintf(stderr, "tagwright reprint: out of memory\n");
         return TW_EXIT_IO;
     }
@@ -332,7 +382,7 @@ static int make_label(tw_study *st, const reprint_args *a, const tw_bus *b, tw_l
     tw_diags_free(&revised);
     if (refused)
         return TW_EXIT_DATA;
-    char *note = revision_note(a, r, old_l, new_l);
+    char *note = revision_note(a, r);
     int ok = note && tw_label_set(new_l, TW_L_REVISION_NOTE, note) == 0 &&
              tw_label_rehash(new_l) == 0;
     free(note);
@@ -383,19 +433,17 @@ static int run(tw_study *st, const reprint_args *a)
         fprintf(stderr, "tagwright reprint: %s has errors; no label written\n", a->bus);
     if (rc == TW_EXIT_OK) {
         print_warnings(&r, &rb, &st->site);
-        const tw_row *g = rb.bus.governing;
-        char *reason = manifest_reason(a, &r, tw_row_has(g, TW_F_SCENARIO)
-                                                  ? g->text[TW_F_SCENARIO] : "(unnamed)");
+        char *reason = manifest_reason(a, &r, &rb, &old_l, &new_l);
         rc = reason ? print_label(st, a, &new_l, reason) : TW_EXIT_IO;
         free(reason);
     }
     if (rc == TW_EXIT_OK) {
-        print_changes(a, &old_l, &new_l, &r);
+        print_changes(a, &old_l, &new_l, &r, &rb);
         printf("%s: 1 label, content hash %s\n", a->out, new_l.hash);
     }
     tw_label_free(&old_l);
     tw_label_free(&new_l);
-    free(rb.rows);
+    revised_bus_free(&rb);
     return rc;
 }
 
