@@ -87,11 +87,9 @@ static const tw_bus **select_buses(tw_study *st, const labels_args *a, size_t *n
                                        : &st->buses.buses[i];
         if (b)
             sel[(*n)++] = b;
-        else {
-            tw_source src = {a->results, 0, NULL};
-            tw_diag_add(&st->diags, TW_ERROR, &src, a->buses[i], "equipment_id",
-                        "--bus names equipment that is not in the results");
-        }
+        else
+            fprintf(stderr, "%s: error: %s: equipment_id: --bus names equipment that is not in "
+                    "the results\n", a->results, a->buses[i]);
     }
     return sel;
 }
@@ -159,6 +157,7 @@ static int run(tw_study *st, const labels_args *a)
     }
     size_t refused = derive_all(st, sel, n, a, labels);
     int layout_bad = load_layout(a, &st->site, &layout, &st->diags) != 0;
+    tw_diags_sort(&st->diags);
     print_findings(&st->diags, sel, n, a->bus_count == 0);
     if (refused || layout_bad || (a->bus_count && n < a->bus_count)) {
         if (refused)
