@@ -360,8 +360,9 @@ done:
 }
 
 /* Errors make a bus incomparable; they go to stderr (warnings are `check`'s business). */
-static void print_errors(const side *s)
+static void print_errors(side *s)
 {
+    tw_diags_sort(&s->st.diags);
     for (size_t i = 0; i < s->st.diags.count; i++)
         if (s->st.diags.items[i].severity == TW_ERROR)
             tw_diag_print(&s->st.diags.items[i], stderr);

@@ -152,6 +152,7 @@ static int run(tw_study *st, const due_args *a)
         m++;
     }
     qsort(items, m, sizeof *items, by_due_date);
+    tw_diags_sort(&d);
     tw_diags_print(&d, stderr);
     char on[11];
     tw_date_format(a->on, on);

@@ -428,6 +428,7 @@ static int run(tw_study *st, const reprint_args *a)
     tw_rescale r = {0};
     revised_bus rb = {0};
     int rc = tw_bus_errors(b) ? TW_EXIT_DATA : make_label(st, a, b, &old_l, &new_l, &r, &rb);
+    tw_diags_sort(&st->diags);
     tw_batch_print_findings(&st->diags, &b, 1, stderr);
     if (rc == TW_EXIT_DATA)
         fprintf(stderr, "tagwright reprint: %s has errors; no label written\n", a->bus);
