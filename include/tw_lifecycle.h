@@ -67,8 +67,9 @@ typedef struct {
 int tw_rescale_by_time(double old_energy, double old_time, double new_time,
                        double working_distance_mm, double exponent, tw_rescale *out);
 
-/* Replace the energy with a value from a re-run study (old_time may be 0: unknown). Same
- * contract as above; no warnings are raised for a value the study itself produced. */
+/* Replace the energy with a value from a re-run study (old_energy and old_time may be 0:
+ * unknown, e.g. a bus labelled by PPE category). Otherwise the same contract as above; no
+ * warnings are raised for a value the study itself produced. */
 int tw_rescale_by_energy(double old_energy, double new_energy, double old_time,
                          double working_distance_mm, double exponent, tw_rescale *out);
 

@@ -146,11 +146,12 @@ static int exponent_of(const tw_row *g, const char *eq, double *x, tw_diags *d)
 static int rescale(const reprint_args *a, const tw_row *g, const char *eq, tw_rescale *r,
                    tw_diags *d)
 {
-    double energy, wd, x, t = 0;
-    if (row_number(g, TW_F_INCIDENT_ENERGY_CAL, &energy) != 0) {
+    double energy = 0, wd, x, t = 0;
+    int by_time = a->clearing_time > 0;
+    if (row_number(g, TW_F_INCIDENT_ENERGY_CAL, &energy) != 0 && by_time) {
         row_error(d, g, eq, TW_F_INCIDENT_ENERGY_CAL,
                   "the governing scenario has no usable incident energy (a PPE category cannot "
-                  "be rescaled); re-run the study");
+                  "be rescaled); give --incident-energy from a re-run study");
         return -1;
     }
     if (row_number(g, TW_F_WORKING_DISTANCE_MM, &wd) != 0) {
@@ -161,16 +162,15 @@ static int rescale(const reprint_args *a, const tw_row *g, const char *eq, tw_re
     if (exponent_of(g, eq, &x, d) != 0)
         return -1;
     int has_time = row_number(g, TW_F_CLEARING_TIME_S, &t) == 0;
-    if (a->clearing_time > 0 && !has_time) {
+    if (by_time && !has_time) {
         row_error(d, g, eq, TW_F_CLEARING_TIME_S,
                   "missing in the governing scenario; rescaling needs the study's clearing time "
                   "(new energy = study energy x new time / study time), or give "
                   "--incident-energy from a re-run study");
         return -1;
     }
-    int rc = a->clearing_time > 0
-                 ? tw_rescale_by_time(energy, t, a->clearing_time, wd, x, r)
-                 : tw_rescale_by_energy(energy, a->incident_energy, has_time ? t : 0, wd, x, r);
+    int rc = by_time ? tw_rescale_by_time(energy, t, a->clearing_time, wd, x, r)
+                     : tw_rescale_by_energy(energy, a->incident_energy, has_time ? t : 0, wd, x, r);
     if (rc != 0)
         row_error(d, g, eq, TW_F_INCIDENT_ENERGY_CAL, "the revised values are out of range "
                   "(the boundary cannot be computed from them)");

@@ -104,7 +104,7 @@ int tw_rescale_by_time(double old_energy, double old_time, double new_time,
 int tw_rescale_by_energy(double old_energy, double new_energy, double old_time,
                          double working_distance_mm, double exponent, tw_rescale *out)
 {
-    if (!positive(old_energy) || !(old_time >= 0) || !isfinite(old_time))
+    if (!(old_energy >= 0) || !isfinite(old_energy) || !(old_time >= 0) || !isfinite(old_time))
         return -1;
     tw_rescale r = {old_energy, 0, old_time, 0, working_distance_mm, exponent, 0, 0};
     if (finish(&r, new_energy) != 0)

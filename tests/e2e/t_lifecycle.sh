@@ -94,6 +94,17 @@ check "nothing written" test ! -e "$TW_TMP/none.pdf"
 run reprint "$D/reprint.csv" --bus RP-NOTIME-1 --incident-energy 3 --out "$TW_TMP/none.pdf" \
     --manifest "$TW_TMP/other.json" --date 2026-12-05
 expect_rc 0 "without a clearing time, --incident-energy still works"
+# a bus labelled by PPE category (table method) cannot be rescaled, but takes a re-run value
+run reprint "$D/category.csv" --bus CAT-PNL-1 --clearing-time 0.03 --out "$TW_TMP/cat.pdf" \
+    --manifest "$TW_TMP/other.json"
+expect_rc 1 "a PPE-category label cannot be rescaled by time"
+contains "$ERR" "PPE category cannot be rescaled" "says why"
+run reprint "$D/category.csv" --bus CAT-PNL-1 --incident-energy 4.8 --out "$TW_TMP/cat.pdf" \
+    --manifest "$TW_TMP/other.json" --date 2026-12-05
+expect_rc 0 "a PPE-category label takes an energy from a re-run study"
+t=$(page_text "$TW_TMP/cat.pdf" 1)
+contains "$t" "4.8 cal/cm" "the label now shows the energy"
+lacks "$t" "PPE category" "and not the category too (NFPA 70E 130.5(H): one or the other)"
 run reprint "$D/reprint.csv" --bus RP-MCC-1 --out "$TW_TMP/x.pdf"
 expect_rc 2 "neither --clearing-time nor --incident-energy"
 run reprint "$D/reprint.csv" --bus RP-MCC-1 --clearing-time 0.1 --incident-energy 3 --out "$TW_TMP/x.pdf"

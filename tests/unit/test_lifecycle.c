@@ -175,6 +175,10 @@ static void rescale_by_energy_should_take_the_value_and_recompute_the_boundary(v
     assert_near(r.new_boundary_mm, 914.4, 1e-9);
     assert_true(r.new_time_s == 0);
     assert_int_equal(r.warnings, 0);
+    /* a bus labelled by PPE category has no study energy: 0 is accepted as unknown */
+    assert_int_equal(tw_rescale_by_energy(0, 4.8, 0, 457.2, 2.0, &r), 0);
+    assert_near(r.new_boundary_mm, 914.4, 1e-9);
+    assert_int_equal(tw_rescale_by_energy(-1, 4.8, 0, 457.2, 2.0, &r), -1);
 }
 
 /* ---- comparing label content ---- */
