@@ -235,37 +235,46 @@ n=$(python3 -c 'import json,sys; print(len(json.load(open(sys.argv[1]))["labels"
 [ "$n" = 4 ] && ok "all four revisions are present" || fail "$n entries, expected 4"
 
 # A large run killed with SIGKILL midway leaves the old manifest and PDF, or the new ones, whole.
+# The kill points are fractions of an uninterrupted run's time, most of them near its end, where
+# the PDF and then the manifest are written.
 big="$TW_TMP/big.csv"
 head -n 1 "$TW_DATA/core/small.csv" >"$big"
-awk 'BEGIN { for (i = 1; i <= 3000; i++)
+awk 'BEGIN { for (i = 1; i <= 1500; i++)
     printf "BIG-%04d,Panel %d,Room %d,BIG-STUDY,2026-09-15,utility-max,480,panelboard,18,%.2f,40.0,1.641,20,10,0.05,no,\n", i, i, i, 2 + (i % 50) / 10 }' >>"$big"
 KM="$TW_TMP/kill.manifest.json"
 "$TW_BIN" labels "$TW_DATA/core/small.csv" --out "$TW_TMP/kill.pdf" --manifest "$KM" --date 2026-12-01 >/dev/null 2>&1
 cp "$KM" "$TW_TMP/kill.before.json"
 cp "$TW_TMP/kill.pdf" "$TW_TMP/kill.before.pdf"
-whole=0
-for delay in 0.05 0.2 0.4 0.8 1.5; do
+t0=$(date +%s.%N)
+"$TW_BIN" labels "$big" --out "$TW_TMP/kill.pdf" --manifest "$KM" --date 2026-12-02 >/dev/null 2>&1
+t1=$(date +%s.%N)
+entries_of() { python3 -c 'import json,sys; print(len(json.load(open(sys.argv[1]))["labels"]))' "$1"; }
+pages_of() { pdfinfo "$1" 2>/dev/null | awk '/^Pages:/ {print $2}'; }
+[ "$(entries_of "$KM")" = 1504 ] && [ "$(pages_of "$TW_TMP/kill.pdf")" = 1500 ] &&
+    ok "an uninterrupted large run records 1504 entries and prints 1500 pages" || fail "large run"
+whole=0 old=0 new=0
+for frac in 0.6 0.85 0.92 0.96 0.99; do
+    cp "$TW_TMP/kill.before.json" "$KM"
+    cp "$TW_TMP/kill.before.pdf" "$TW_TMP/kill.pdf"
+    delay=$(awk -v a="$t0" -v b="$t1" -v f="$frac" 'BEGIN { printf "%.3f", (b - a) * f }')
     "$TW_BIN" labels "$big" --out "$TW_TMP/kill.pdf" --manifest "$KM" --date 2026-12-02 >/dev/null 2>&1 &
     pid=$!
     sleep "$delay"
     kill -9 "$pid" 2>/dev/null || true
     wait "$pid" 2>/dev/null || true
-    if python3 -m json.tool "$KM" >/dev/null 2>&1 && qpdf --check "$TW_TMP/kill.pdf" >/dev/null 2>&1; then
-        pages=$(pdfinfo "$TW_TMP/kill.pdf" | awk '/^Pages:/ {print $2}')
-        entries=$(python3 -c 'import json,sys; print(len(json.load(open(sys.argv[1]))["labels"]))' "$KM")
-        if { cmp -s "$KM" "$TW_TMP/kill.before.json" || [ "$entries" = 3004 ]; } &&
-           { [ "$pages" = 4 ] || [ "$pages" = 3000 ]; }; then
-            whole=$((whole + 1))
-        else
-            fail "after kill -9 at ${delay}s: manifest $entries entries, PDF $pages pages"
-        fi
-    else
+    if ! python3 -m json.tool "$KM" >/dev/null 2>&1 || ! qpdf --check "$TW_TMP/kill.pdf" >/dev/null 2>&1; then
         fail "after kill -9 at ${delay}s the manifest or PDF is damaged"
+        continue
     fi
-    # restore the old state for the next round
-    cp "$TW_TMP/kill.before.json" "$KM"
-    cp "$TW_TMP/kill.before.pdf" "$TW_TMP/kill.pdf"
+    entries=$(entries_of "$KM") pages=$(pages_of "$TW_TMP/kill.pdf")
+    if { cmp -s "$KM" "$TW_TMP/kill.before.json" || [ "$entries" = 1504 ]; } &&
+       { [ "$pages" = 4 ] || [ "$pages" = 1500 ]; }; then
+        whole=$((whole + 1))
+        [ "$entries" = 1504 ] && new=$((new + 1)) || old=$((old + 1))
+    else
+        fail "after kill -9 at ${delay}s: manifest $entries entries, PDF $pages pages"
+    fi
 done
-[ "$whole" = 5 ] && ok "after kill -9 at five points, manifest and PDF are the old or the new ones, whole" \
+[ "$whole" = 5 ] && ok "kill -9 at five points: manifest and PDF whole each time ($old old manifests, $new new)" \
     || fail "only $whole of 5 interrupted runs left whole files"
 finish
