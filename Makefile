@@ -31,17 +31,23 @@ BIN      = $(BUILD)/tagwright
 .PHONY: all demo check unit e2e asan-check deps install clean fuzz valgrind bench
 all: $(BIN)
 
+# V=1 shows the full commands.
+Q = $(if $(V),,@)
+
 $(BUILD)/obj/%.o: src/%.c $(wildcard include/*.h) | $(BUILD)/obj
-	$(CC) $(CPPFLAGS) $(CFLAGS) -c -o $@ $<
+	@$(if $(V),true,echo "  CC    $<")
+	$(Q)$(CC) $(CPPFLAGS) $(CFLAGS) -c -o $@ $<
 
 $(BUILD)/libtagwright.a: $(LIB_OBJ)
-	rm -f $@ && ar rcs $@ $^
+	$(Q)rm -f $@ && ar rcs $@ $^
 
 $(BIN): $(BUILD)/obj/main.o $(BUILD)/libtagwright.a
-	$(CC) $(CFLAGS) $(LDFLAGS) -o $@ $^ $(LDLIBS)
+	@$(if $(V),true,echo "  LINK  $@")
+	$(Q)$(CC) $(CFLAGS) $(LDFLAGS) -o $@ $^ $(LDLIBS)
 
 $(BUILD)/tests/%: tests/unit/%.c tests/unit/tw_test.h $(BUILD)/libtagwright.a | $(BUILD)/tests
-	$(CC) $(CPPFLAGS) -Itests/unit $(CFLAGS) $(LDFLAGS) -o $@ $< $(BUILD)/libtagwright.a $(LDLIBS) -lcmocka
+	@$(if $(V),true,echo "  TEST  $@")
+	$(Q)$(CC) $(CPPFLAGS) -Itests/unit $(CFLAGS) $(LDFLAGS) -o $@ $< $(BUILD)/libtagwright.a $(LDLIBS) -lcmocka
 
 $(BUILD)/obj $(BUILD)/tests:
 	mkdir -p $@

@@ -8,7 +8,11 @@
  *
  * Readers never stop at the first bad value: a cell that cannot be parsed gets an error finding
  * (file and line, or JSON path, and the column name), the field is marked invalid, and reading
- * goes on. Only an unreadable file or one that is not CSV/JSON at all makes them return -1.
+ * goes on. A finding about the file as a whole (broken quoting, a duplicated column, a bus that
+ * is not an object, a limit reached) means rows may be lost or ambiguous - a lost row could be a
+ * bus's worst case - so it is counted in the errors of every row read and no bus is posted.
+ * Only an unreadable file, one that is not CSV/JSON at all (no known column in the header,
+ * invalid JSON syntax), or running out of memory makes them return -1.
  *
  * Ownership: tw_results owns its rows and their strings; tw_results_free() accepts a zeroed set.
  */
@@ -130,5 +134,29 @@ int tw_results_read_json(const char *name, const char *data, size_t len, tw_resu
 
 /* Free every row. */
 void tw_results_free(tw_results *r);
+
+/* --- Building rows: shared by the CSV and JSON readers (src/results.c). --- */
+
+/* Append a zeroed row (file set, line 0, no path). NULL when out of memory; the caller
+ * enforces TW_MAX_ROWS. */
+tw_row *tw_results_add_row(tw_results *r);
+
+/* Store a text value for column c: trimmed (empty means absent), then checked for length,
+ * valid UTF-8 and control characters (line breaks only in description and location). A bad
+ * value gets an error finding naming c->name and marks the field invalid. */
+void tw_row_set_text(tw_row *r, const tw_column *c, const char *s, size_t len, tw_diags *d);
+
+/* Store a number given in c's unit: finite, a whole number for integers, converted to the
+ * canonical unit. The same field already given in another unit must agree within 1 %. */
+void tw_row_set_number(tw_row *r, const tw_column *c, double v, tw_diags *d);
+
+/* Parse a text cell by c's kind (text, decimal number, whole number, yes/no) and store it. */
+void tw_row_set_cell(tw_row *r, const tw_column *c, const char *s, size_t len, tw_diags *d);
+
+/* Parse yes/no, true/false, y/n, 1/0 (any case). 0 and *out set, or -1. */
+int tw_parse_yes_no(const char *s, int *out);
+
+/* A short, printable excerpt of s for messages ("abc", or the first bytes and "..."). */
+char *tw_excerpt(const char *s, size_t len);
 
 #endif

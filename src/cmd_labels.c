@@ -87,11 +87,9 @@ static const tw_bus **select_buses(tw_study *st, const labels_args *a, size_t *n
                                        : &st->buses.buses[i];
         if (b)
             sel[(*n)++] = b;
-        else {
-            tw_source src = {a->results, 0, NULL};
-            tw_diag_add(&st->diags, TW_ERROR, &src, a->buses[i], "equipment_id",
-                        "--bus names equipment that is not in the results");
-        }
+        else
+            fprintf(stderr, "%s: error: %s: equipment_id: --bus names equipment that is not in "
+                    "the results\n", a->results, a->buses[i]);
     }
     return sel;
 }

@@ -2,6 +2,8 @@
 #include "tw_study.h"
 
 #include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
 
 #include "tw_validate.h"
 
@@ -17,7 +19,11 @@ int tw_study_load(tw_study *s, const char *results_path, const char *site_path)
         return -1;
     }
     if (tw_results_read(results_path, &s->results, &s->diags) != 0) {
-        s->unreadable = 1;
+        /* A file that exists and can be read but is not results data is bad data (exit 1);
+         * only a file that cannot be read at all is an I/O error (exit 3). */
+        struct stat st;
+        s->unreadable = access(results_path, R_OK) != 0 || stat(results_path, &st) != 0 ||
+                        S_ISDIR(st.st_mode);
         return -1;
     }
     if (tw_bus_set_build(&s->results, &s->buses) != 0)

@@ -10,29 +10,6 @@
 #include "tw_results.h"
 #include "tw_site.h"
 
-/* Stand-ins for the results module's helpers, used only when the test program does not pull
- * that module in; the library's own definitions win whenever it is linked. */
-__attribute__((weak)) tw_source tw_row_source(const tw_row *r, tw_field f, char *path_buf,
-                                              size_t n)
-{
-    (void)f;
-    if (n)
-        path_buf[0] = '\0';
-    tw_source s = {r->file, r->line, r->path};
-    return s;
-}
-
-__attribute__((weak)) const char *tw_field_display(tw_field f)
-{
-    switch (f) {
-    case TW_F_ARC_FLASH_BOUNDARY_MM: return "arc_flash_boundary_mm|_in|_ft";
-    case TW_F_INCIDENT_ENERGY_CAL: return "incident_energy_cal_cm2";
-    case TW_F_STUDY_DATE: return "study_date";
-    case TW_F_NOMINAL_VOLTAGE_V: return "nominal_voltage_v";
-    default: return "field";
-    }
-}
-
 typedef struct {
     tw_row row;
     tw_row *rows[1];

@@ -1,0 +1,559 @@
+/* draw.c - PDF documents and drawing primitives shared by every PDF (see tw_draw.h). */
+#include "tw_draw.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include "tw_atomic.h"
+#include "tw_date.h"
+#include "tw_util.h"
+
+#define TW_DEFAULT_FONT_DIR "/usr/share/fonts/truetype/dejavu"
+#define TW_FONT_REGULAR "DejaVuSans.ttf"
+#define TW_FONT_BOLD "DejaVuSans-Bold.ttf"
+
+/* From memory; verify against ANSI Z535.1 (see tw_draw.h). */
+const tw_rgb TW_SAFETY_RED = {200 / 255.0, 16 / 255.0, 46 / 255.0};
+const tw_rgb TW_SAFETY_ORANGE = {255 / 255.0, 130 / 255.0, 0};
+const tw_rgb TW_BLACK = {0, 0, 0};
+const tw_rgb TW_WHITE = {1, 1, 1};
+const tw_rgb TW_GREY = {0.45, 0.45, 0.45};
+
+const char *tw_font_dir(void)
+{
+    const char *env = getenv("TAGWRIGHT_FONTS");
+    return env && *env ? env : TW_DEFAULT_FONT_DIR;
+}
+
+/* ---- documents ---------------------------------------------------------------------------- */
+
+static void on_hpdf_error(HPDF_STATUS error, HPDF_STATUS detail, void *user)
+{
+    tw_pdf_doc *d = user;
+    if (d && !d->error) {
+        d->error = (unsigned long)error;
+        d->detail = (unsigned long)detail;
+    }
+}
+
+static const char *hpdf_error_text(unsigned long e)
+{
+    switch (e) {
+    case HPDF_FAILD_TO_ALLOC_MEM:
+        return "out of memory";
+    case HPDF_FILE_IO_ERROR:
+        return "file write error";
+    case HPDF_FILE_OPEN_ERROR:
+        return "cannot open file";
+    case HPDF_TTF_INVALID_CMAP:
+    case HPDF_TTF_INVALID_FOMAT:
+        return "not a usable TrueType font";
+    default:
+        return "PDF library error";
+    }
+}
+
+int tw_pdf_doc_check(const tw_pdf_doc *d, char *err, size_t errlen)
+{
+    if (!d->error)
+        return 0;
+    snprintf(err, errlen, "%s (libharu error 0x%04lX, detail %lu)", hpdf_error_text(d->error),
+             d->error, d->detail);
+    return -1;
+}
+
+static HPDF_Font load_font(tw_pdf_doc *d, const char *file, char *err, size_t errlen)
+{
+    char *path = tw_asprintf("%s/%s", tw_font_dir(), file);
+    if (!path) {
+        snprintf(err, errlen, "out of memory");
+        return NULL;
+    }
+    HPDF_Font font = NULL;
+    if (access(path, R_OK) != 0) {
+        snprintf(err, errlen,
+                 "%s: font not found (install fonts-dejavu-core or set TAGWRIGHT_FONTS to the "
+                 "directory holding %s)",
+                 path, file);
+    } else {
+        const char *name = HPDF_LoadTTFontFromFile(d->pdf, path, HPDF_TRUE);
+        font = name ? HPDF_GetFont(d->pdf, name, "UTF-8") : NULL;
+        if (!font) {
+            char why[160];
+            tw_pdf_doc_check(d, why, sizeof why);
+            snprintf(err, errlen, "%s: cannot load font: %s", path, d->error ? why : "unknown");
+        }
+    }
+    free(path);
+    return font;
+}
+
+static int set_dates(tw_pdf_doc *d, const char *creation_date, char *err, size_t errlen)
+{
+    tw_date day;
+    if (tw_date_parse(creation_date, &day) != 0) {
+        snprintf(err, errlen, "document date \"%s\": expected YYYY-MM-DD",
+                 creation_date ? creation_date : "");
+        return -1;
+    }
+    HPDF_Date t = {day.year, day.month, day.day, 0, 0, 0, 'Z', 0, 0};
+    HPDF_SetInfoDateAttr(d->pdf, HPDF_INFO_CREATION_DATE, t);
+    HPDF_SetInfoDateAttr(d->pdf, HPDF_INFO_MOD_DATE, t);
+    HPDF_SetInfoAttr(d->pdf, HPDF_INFO_CREATOR, "tagwright");
+    return 0;
+}
+
+int tw_pdf_doc_open(tw_pdf_doc *d, const char *creation_date, char *err, size_t errlen)
+{
+    memset(d, 0, sizeof *d);
+    d->pdf = HPDF_New(on_hpdf_error, d);
+    if (!d->pdf) {
+        snprintf(err, errlen, "cannot start a PDF document: out of memory");
+        return -1;
+    }
+    HPDF_SetCompressionMode(d->pdf, HPDF_COMP_ALL);
+    HPDF_UseUTFEncodings(d->pdf);
+    HPDF_SetCurrentEncoder(d->pdf, "UTF-8");
+    if (set_dates(d, creation_date, err, errlen) != 0 ||
+        !(d->regular = load_font(d, TW_FONT_REGULAR, err, errlen)) ||
+        !(d->bold = load_font(d, TW_FONT_BOLD, err, errlen)))
+        goto fail;
+    if (tw_pdf_doc_check(d, err, errlen) != 0)
+        goto fail;
+    return 0;
+fail:
+    tw_pdf_doc_close(d);
+    return -1;
+}
+
+HPDF_Page tw_pdf_doc_page(tw_pdf_doc *d, double w, double h)
+{
+    HPDF_Page p = HPDF_AddPage(d->pdf);
+    if (p) {
+        HPDF_Page_SetWidth(p, (HPDF_REAL)w);
+        HPDF_Page_SetHeight(p, (HPDF_REAL)h);
+    }
+    return d->error ? NULL : p;
+}
+
+int tw_pdf_doc_save(tw_pdf_doc *d, const char *path, char *err, size_t errlen)
+{
+    char why[200];
+    if (tw_pdf_doc_check(d, why, sizeof why) != 0) {
+        snprintf(err, errlen, "%s: not written: %s", path, why);
+        return -1;
+    }
+    char *tmp = tw_atomic_tmp_path(path, err, errlen);
+    if (!tmp)
+        return -1;
+    if (HPDF_SaveToFile(d->pdf, tmp) != HPDF_OK || d->error) {
+        tw_pdf_doc_check(d, why, sizeof why);
+        snprintf(err, errlen, "%s: cannot write: %s", path, d->error ? why : "PDF library error");
+        unlink(tmp);
+        tw_atomic_forget(tmp);
+        free(tmp);
+        return -1;
+    }
+    int rc = tw_atomic_publish(tmp, path, err, errlen);
+    free(tmp);
+    return rc;
+}
+
+void tw_pdf_doc_close(tw_pdf_doc *d)
+{
+    if (!d)
+        return;
+    if (d->pdf)
+        HPDF_Free(d->pdf);
+    memset(d, 0, sizeof *d);
+}
+
+/* ---- text --------------------------------------------------------------------------------- */
+
+int tw_text_ok(const char *s)
+{
+    const unsigned char *p = (const unsigned char *)s;
+    while (*p) {
+        unsigned char c = *p;
+        size_t n = c < 0x80 ? 1 : (c & 0xE0) == 0xC0 ? 2 : (c & 0xF0) == 0xE0 ? 3
+                                 : (c & 0xF8) == 0xF0 ? 4 : 0;
+        if (n == 0 || (n == 1 && (c < 0x20 || c == 0x7F)))
+            return 0;
+        if (n == 2 && c < 0xC2)
+            return 0; /* overlong */
+        for (size_t i = 1; i < n; i++)
+            if ((p[i] & 0xC0) != 0x80)
+                return 0;
+        if ((n == 3 && c == 0xE0 && p[1] < 0xA0) || (n == 4 && c == 0xF0 && p[1] < 0x90) ||
+            (n == 4 && c > 0xF4) || (n == 3 && c == 0xED && p[1] >= 0xA0))
+            return 0; /* overlong, beyond U+10FFFF, or a surrogate */
+        p += n;
+    }
+    return 1;
+}
+
+double tw_text_width(HPDF_Font f, double pt, const char *s, size_t len)
+{
+    if (len == 0)
+        return 0;
+    HPDF_TextWidth tw = HPDF_Font_TextWidth(f, (const HPDF_BYTE *)s, (HPDF_UINT)len);
+    return tw.width * pt / 1000.0;
+}
+
+double tw_baseline_drop(HPDF_Font f, double pt)
+{
+    double asc = HPDF_Font_GetAscent(f) / 1000.0, desc = HPDF_Font_GetDescent(f) / 1000.0;
+    double extra = TW_LEADING - (asc - desc);
+    return (extra > 0 ? extra / 2 : 0) * pt + asc * pt;
+}
+
+/* Length in bytes of the UTF-8 character starting at s (1 for a stray byte). */
+static size_t utf8_len(const char *s, size_t avail)
+{
+    unsigned char c = (unsigned char)*s;
+    size_t n = c < 0x80 ? 1 : (c >> 5) == 6 ? 2 : (c >> 4) == 14 ? 3 : (c >> 3) == 30 ? 4 : 1;
+    return n <= avail ? n : avail;
+}
+
+typedef struct {
+    HPDF_Font f;
+    double pt, w;
+    tw_span *lines;
+    int max, n;
+    size_t start, end; /* the line being built */
+    double width;
+    int open;
+} wrapper;
+
+static void emit(wrapper *wr, size_t start, size_t end)
+{
+    if (wr->n < wr->max)
+        wr->lines[wr->n] = (tw_span){start, end - start};
+    wr->n++;
+}
+
+/* A word wider than a whole line: emit full-width pieces, keep the rest as the open line. */
+static void split_word(wrapper *wr, const char *s, size_t a, size_t b)
+{
+    size_t start = a;
+    double width = 0;
+    for (size_t i = a; i < b;) {
+        size_t k = utf8_len(s + i, b - i);
+        double cw = tw_text_width(wr->f, wr->pt, s + i, k);
+        if (i > start && width + cw > wr->w + 1e-6) {
+            emit(wr, start, i);
+            start = i;
+            width = 0;
+        }
+        width += cw;
+        i += k;
+    }
+    wr->start = start;
+    wr->end = b;
+    wr->width = width;
+    wr->open = 1;
+}
+
+static void add_word(wrapper *wr, const char *s, size_t space_at, size_t a, size_t b)
+{
+    double ww = tw_text_width(wr->f, wr->pt, s + a, b - a);
+    if (wr->open) {
+        double sw = tw_text_width(wr->f, wr->pt, s + space_at, a - space_at);
+        if (wr->width + sw + ww <= wr->w + 1e-6) {
+            wr->width += sw + ww;
+            wr->end = b;
+            return;
+        }
+        emit(wr, wr->start, wr->end);
+        wr->open = 0;
+    }
+    if (ww <= wr->w + 1e-6) {
+        wr->start = a;
+        wr->end = b;
+        wr->width = ww;
+        wr->open = 1;
+    } else {
+        split_word(wr, s, a, b);
+    }
+}
+
+int tw_wrap(HPDF_Font f, double pt, const char *s, double w, tw_span *lines, int max)
+{
+    wrapper wr = {f, pt, w, lines, max, 0, 0, 0, 0, 0};
+    size_t len = strlen(s), i = 0;
+    for (;;) {
+        size_t para_end = i;
+        while (para_end < len && s[para_end] != '\n')
+            para_end++;
+        wr.open = 0;
+        int words = 0;
+        for (size_t j = i; j < para_end;) {
+            size_t space_at = j;
+            while (j < para_end && s[j] == ' ')
+                j++;
+            size_t a = j;
+            while (j < para_end && s[j] != ' ')
+                j++;
+            if (j > a) {
+                add_word(&wr, s, space_at, a, j);
+                words++;
+            }
+        }
+        if (wr.open)
+            emit(&wr, wr.start, wr.end);
+        else if (!words)
+            emit(&wr, i, i);
+        if (para_end >= len)
+            break;
+        i = para_end + 1;
+    }
+    return wr.n;
+}
+
+double tw_fit_size(HPDF_Font f, const char *s, double w, int max_lines, double start_pt,
+                   double min_pt)
+{
+    for (double pt = start_pt; pt >= min_pt - 1e-9; pt -= 0.5)
+        if (tw_wrap(f, pt, s, w, NULL, 0) <= max_lines)
+            return pt;
+    return 0;
+}
+
+static void set_fill(HPDF_Page p, tw_rgb c)
+{
+    HPDF_Page_SetRGBFill(p, (HPDF_REAL)c.r, (HPDF_REAL)c.g, (HPDF_REAL)c.b);
+}
+
+static void set_stroke(HPDF_Page p, tw_rgb c)
+{
+    HPDF_Page_SetRGBStroke(p, (HPDF_REAL)c.r, (HPDF_REAL)c.g, (HPDF_REAL)c.b);
+}
+
+void tw_draw_text(HPDF_Page p, HPDF_Font f, double pt, double x, double y, const char *s,
+                  size_t len, tw_rgb colour)
+{
+    if (len == 0)
+        return;
+    char small[256];
+    char *text = len < sizeof small ? small : malloc(len + 1);
+    if (!text)
+        return; /* out of memory: the caller's document check reports nothing drawn */
+    memcpy(text, s, len);
+    text[len] = '\0';
+    set_fill(p, colour);
+    HPDF_Page_BeginText(p);
+    HPDF_Page_SetFontAndSize(p, f, (HPDF_REAL)pt);
+    HPDF_Page_TextOut(p, (HPDF_REAL)x, (HPDF_REAL)y, text);
+    HPDF_Page_EndText(p);
+    if (text != small)
+        free(text);
+}
+
+void tw_draw_lines(HPDF_Page p, HPDF_Font f, double pt, double x, double top, double w,
+                   const char *s, const tw_span *lines, int n, tw_align a, tw_rgb colour)
+{
+    double y = top - tw_baseline_drop(f, pt);
+    for (int i = 0; i < n; i++, y -= pt * TW_LEADING) {
+        const char *t = s + lines[i].start;
+        double lw = tw_text_width(f, pt, t, lines[i].len);
+        double lx = a == TW_ALIGN_LEFT ? x : a == TW_ALIGN_CENTRE ? x + (w - lw) / 2 : x + w - lw;
+        tw_draw_text(p, f, pt, lx, y, t, lines[i].len, colour);
+    }
+}
+
+/* ---- shapes ------------------------------------------------------------------------------- */
+
+void tw_draw_fill(HPDF_Page p, tw_box b, tw_rgb colour)
+{
+    set_fill(p, colour);
+    HPDF_Page_Rectangle(p, (HPDF_REAL)b.x, (HPDF_REAL)b.y, (HPDF_REAL)b.w, (HPDF_REAL)b.h);
+    HPDF_Page_Fill(p);
+}
+
+void tw_draw_frame(HPDF_Page p, tw_box b, double lw, tw_rgb colour)
+{
+    set_stroke(p, colour);
+    HPDF_Page_SetLineWidth(p, (HPDF_REAL)lw);
+    HPDF_Page_Rectangle(p, (HPDF_REAL)b.x, (HPDF_REAL)b.y, (HPDF_REAL)b.w, (HPDF_REAL)b.h);
+    HPDF_Page_Stroke(p);
+}
+
+void tw_draw_line(HPDF_Page p, double x0, double y0, double x1, double y1, double lw,
+                  tw_rgb colour)
+{
+    set_stroke(p, colour);
+    HPDF_Page_SetLineWidth(p, (HPDF_REAL)lw);
+    HPDF_Page_MoveTo(p, (HPDF_REAL)x0, (HPDF_REAL)y0);
+    HPDF_Page_LineTo(p, (HPDF_REAL)x1, (HPDF_REAL)y1);
+    HPDF_Page_Stroke(p);
+}
+
+/* ---- QR ----------------------------------------------------------------------------------- */
+
+double tw_qr_module_pt(int modules, double side, double dpi, int min_dots)
+{
+    if (modules <= 0 || side <= 0)
+        return 0;
+    double m = side / modules;
+    if (dpi > 0) {
+        double dot = 72.0 / dpi;
+        double k = floor(m / dot + 1e-9);
+        return k >= min_dots && k >= 1 ? k * dot : 0;
+    }
+    return m >= 0.5 ? m : 0;
+}
+
+/* The symbol as one grey image on a white quiet zone, one pixel per module, each pixel either
+ * black or white, Flate-compressed with the rest of the document (a few hundred bytes where
+ * rectangles would take kilobytes of content and most of the run time). Scaled by a whole
+ * number of printer dots, it prints with sharp edges; /Interpolate is false by default (ISO
+ * 32000-1 8.9.5.3), so viewers do not smooth it. (libharu's 1-bit loader is not used: it
+ * leaks a dictionary when a document is freed unsaved.) */
+int tw_draw_qr(HPDF_Doc pdf, HPDF_Page p, const tw_qr *q, double x, double y, double module)
+{
+    int n = q->width + 2 * TW_QR_QUIET_MODULES;
+    size_t w = (size_t)q->width;
+    unsigned char *px = malloc(w * w);
+    if (!px)
+        return -1;
+    for (size_t i = 0; i < w * w; i++)
+        px[i] = q->dark[i] ? 0 : 0xFF;
+    HPDF_Image img = HPDF_LoadRawImageFromMem(pdf, px, (HPDF_UINT)w, (HPDF_UINT)w,
+                                              HPDF_CS_DEVICE_GRAY, 8);
+    free(px);
+    if (!img)
+        return -1;
+    tw_draw_fill(p, (tw_box){x, y, n * module, n * module}, TW_WHITE); /* quiet zone */
+    double quiet = TW_QR_QUIET_MODULES * module;
+    HPDF_Page_DrawImage(p, img, (HPDF_REAL)(x + quiet), (HPDF_REAL)(y + quiet),
+                        (HPDF_REAL)(q->width * module), (HPDF_REAL)(q->width * module));
+    return 0;
+}
+
+/* ---- hazard header ------------------------------------------------------------------------ */
+
+/* A polygon from n points, filled and stroked with round joins (rounded corners). */
+static void rounded_polygon(HPDF_Page p, const double *xy, int n, double lw, tw_rgb c)
+{
+    set_fill(p, c);
+    set_stroke(p, c);
+    HPDF_Page_SetLineWidth(p, (HPDF_REAL)lw);
+    HPDF_Page_SetLineJoin(p, HPDF_ROUND_JOIN);
+    HPDF_Page_MoveTo(p, (HPDF_REAL)xy[0], (HPDF_REAL)xy[1]);
+    for (int i = 1; i < n; i++)
+        HPDF_Page_LineTo(p, (HPDF_REAL)xy[2 * i], (HPDF_REAL)xy[2 * i + 1]);
+    HPDF_Page_ClosePath(p);
+    HPDF_Page_FillStroke(p);
+    HPDF_Page_SetLineJoin(p, HPDF_MITER_JOIN);
+}
+
+void tw_draw_alert_symbol(HPDF_Page p, double x, double y, double h, tw_rgb triangle,
+                          tw_rgb mark)
+{
+    const double side = h * 2 / sqrt(3.0);
+    const double cx = x + side / 2, cy = y + h / 3; /* incentre */
+    const double round = h * 0.06;                  /* corner rounding = half the stroke */
+    const double k = (h / 3 - round) / (h / 3);     /* shrink so the stroke stays inside */
+    double tri[6] = {x, y, x + side, y, x + side / 2, y + h};
+    for (int i = 0; i < 3; i++) {
+        tri[2 * i] = cx + (tri[2 * i] - cx) * k;
+        tri[2 * i + 1] = cy + (tri[2 * i + 1] - cy) * k;
+    }
+    rounded_polygon(p, tri, 3, 2 * round, triangle);
+    /* The exclamation mark: a bar narrowing downwards and a round dot. */
+    const double bar_lw = h * 0.02;
+    double bar[8] = {cx - h * 0.065, y + h * 0.74, cx + h * 0.065, y + h * 0.74,
+                     cx + h * 0.04,  y + h * 0.36, cx - h * 0.04,  y + h * 0.36};
+    rounded_polygon(p, bar, 4, bar_lw, mark);
+    set_fill(p, mark);
+    HPDF_Page_Circle(p, (HPDF_REAL)cx, (HPDF_REAL)(y + h * 0.235), (HPDF_REAL)(h * 0.065));
+    HPDF_Page_Fill(p);
+}
+
+typedef struct {
+    double pt, cap, sym_h, sym_w, gap, word_w, tag_pt, tag_w, tag_pad, total;
+} header_fit;
+
+static int fit_header(const tw_pdf_doc *d, tw_box band, const char *word, const char *tag,
+                      double pt, header_fit *h)
+{
+    const double cap_ratio = HPDF_Font_GetCapHeight(d->bold) / 1000.0;
+    h->pt = pt;
+    h->cap = cap_ratio * pt;
+    /* ANSI Z535.4: the symbol is at least as tall as the signal word's letters (from memory,
+     * verify against the edition in force); ours is 1.3 times the capital height. */
+    h->sym_h = h->cap * 1.3;
+    if (h->sym_h > band.h * 0.72)
+        return 0;
+    h->sym_w = h->sym_h * 2 / sqrt(3.0);
+    h->gap = pt * 0.3;
+    h->word_w = tw_text_width(d->bold, pt, word, strlen(word));
+    h->tag_pt = pt * 0.5;
+    h->tag_pad = h->tag_pt * 0.35;
+    h->tag_w = tag ? tw_text_width(d->bold, h->tag_pt, tag, strlen(tag)) + 2 * h->tag_pad : 0;
+    h->total = h->sym_w + h->gap + h->word_w + (tag ? h->gap * 2 + h->tag_w : 0);
+    return h->total <= band.w - 2 * (band.h * 0.12) + 1e-6;
+}
+
+double tw_draw_hazard_header(HPDF_Page p, const tw_pdf_doc *d, tw_box band, tw_signal s,
+                             const char *word, const char *tag, double start_pt,
+                             double min_pt)
+{
+    header_fit h;
+    memset(&h, 0, sizeof h);
+    double pt = start_pt;
+    while (pt >= min_pt - 1e-9 && !fit_header(d, band, word, tag, pt, &h))
+        pt -= 0.5;
+    if (pt < min_pt - 1e-9)
+        return 0;
+    if (!p)
+        return pt;
+    int danger = s == TW_SIGNAL_DANGER;
+    tw_rgb bg = danger ? TW_SAFETY_RED : TW_SAFETY_ORANGE;
+    tw_rgb fg = danger ? TW_WHITE : TW_BLACK;
+    tw_draw_fill(p, band, bg);
+    double x = band.x + (band.w - h.total) / 2;
+    double base = band.y + (band.h - h.cap) / 2;
+    tw_draw_alert_symbol(p, x, base - (h.sym_h - h.cap) / 2, h.sym_h, fg, bg);
+    x += h.sym_w + h.gap;
+    tw_draw_text(p, d->bold, pt, x, base, word, strlen(word), fg);
+    if (tag) {
+        x += h.word_w + 2 * h.gap;
+        double tcap = h.tag_pt * h.cap / pt;
+        tw_draw_frame(p, (tw_box){x, base - h.tag_pad, h.tag_w, tcap + 2 * h.tag_pad},
+                      h.tag_pt * 0.12, fg);
+        tw_draw_text(p, d->bold, h.tag_pt, x + h.tag_pad, base, tag, strlen(tag), fg);
+    }
+    return pt;
+}
+
+/* ---- watermark ---------------------------------------------------------------------------- */
+
+void tw_draw_watermark(HPDF_Page p, HPDF_Font f, tw_box area, const char *text, tw_rgb colour)
+{
+    size_t len = strlen(text);
+    double unit = tw_text_width(f, 1, text, len);
+    if (unit <= 0)
+        return;
+    double diag = hypot(area.w, area.h), angle = atan2(area.h, area.w);
+    double pt = fmin(diag * 0.75 / unit, fmin(area.w, area.h) * 0.2);
+    double tw = unit * pt, cap = HPDF_Font_GetCapHeight(f) / 1000.0 * pt;
+    double c = cos(angle), s = sin(angle);
+    double cx = area.x + area.w / 2, cy = area.y + area.h / 2;
+    double x0 = cx - tw / 2 * c + cap / 2 * s, y0 = cy - tw / 2 * s - cap / 2 * c;
+    HPDF_Page_GSave(p);
+    set_stroke(p, colour);
+    HPDF_Page_SetLineWidth(p, (HPDF_REAL)fmax(0.5, pt * 0.025));
+    HPDF_Page_BeginText(p);
+    HPDF_Page_SetFontAndSize(p, f, (HPDF_REAL)pt);
+    HPDF_Page_SetTextRenderingMode(p, HPDF_STROKE);
+    HPDF_Page_SetTextMatrix(p, (HPDF_REAL)c, (HPDF_REAL)s, (HPDF_REAL)-s, (HPDF_REAL)c,
+                            (HPDF_REAL)x0, (HPDF_REAL)y0);
+    HPDF_Page_ShowText(p, text);
+    HPDF_Page_SetTextRenderingMode(p, HPDF_FILL);
+    HPDF_Page_EndText(p);
+    HPDF_Page_GRestore(p);
+}

@@ -1,0 +1,398 @@
+/* results.c - rows of study results: storing and checking values, findings about rows, and
+ * choosing the CSV or JSON reader (see tw_results.h). */
+#include "tw_results.h"
+
+#include <math.h>
+#include <stdarg.h>
+#include <stdint.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "tw_util.h"
+
+/* Two units of one field agree when they differ by at most this fraction: study tools round
+ * each unit on its own (48 in is 1219.2 mm, often written 1219). */
+#define UNIT_AGREEMENT 0.01
+
+/* Longest excerpt of a bad value quoted in a message, in bytes. */
+#define EXCERPT_BYTES 40
+
+static uint32_t bit(tw_field f)
+{
+    return (uint32_t)1u << f;
+}
+
+tw_source tw_row_source(const tw_row *r, tw_field f, char *path_buf, size_t n)
+{
+    tw_source src = {r->file, r->line, r->path};
+    if (r->path && path_buf && n > 0) {
+        if (f < TW_F_COUNT)
+            snprintf(path_buf, n, "%s.%s", r->path, tw_field_name(f));
+        else
+            snprintf(path_buf, n, "%s", r->path);
+        src.path = path_buf;
+    }
+    return src;
+}
+
+void tw_row_diag(tw_diags *d, tw_row *r, tw_severity sev, tw_field field, const char *field_name,
+                 const char *fmt, ...)
+{
+    const char *name = field_name ? field_name : field < TW_F_COUNT ? tw_field_name(field) : NULL;
+    char *path = NULL;
+    if (r->path)
+        path = field < TW_F_COUNT ? tw_asprintf("%s.%s", r->path, name) : tw_strdup(r->path);
+    char *msg = NULL;
+    va_list ap;
+    va_start(ap, fmt);
+    int n = vsnprintf(NULL, 0, fmt, ap);
+    va_end(ap);
+    if (n >= 0 && (msg = malloc((size_t)n + 1)) != NULL) {
+        va_start(ap, fmt);
+        vsnprintf(msg, (size_t)n + 1, fmt, ap);
+        va_end(ap);
+    }
+    /* Without memory the finding still counts (tw_diag_add drops only its text). */
+    tw_source src = {r->file, r->path ? 0 : r->line, path ? path : r->path};
+    tw_diag_add(d, sev, &src, r->text[TW_F_EQUIPMENT_ID], name, "%s",
+                msg ? msg : "(out of memory)");
+    free(msg);
+    free(path);
+    if (sev == TW_ERROR)
+        r->errors++;
+    else
+        r->warnings++;
+}
+
+tw_row *tw_results_add_row(tw_results *r)
+{
+    if (r->count == r->cap) {
+        size_t cap = r->cap ? r->cap * 2 : 64;
+        tw_row *rows = realloc(r->rows, cap * sizeof *rows);
+        if (!rows)
+            return NULL;
+        r->rows = rows;
+        r->cap = cap;
+    }
+    tw_row *row = &r->rows[r->count++];
+    memset(row, 0, sizeof *row);
+    row->file = r->file;
+    return row;
+}
+
+void tw_results_free(tw_results *r)
+{
+    for (size_t i = 0; i < r->count; i++) {
+        for (int f = 0; f < TW_F_COUNT; f++)
+            free(r->rows[i].text[f]);
+        free(r->rows[i].path);
+    }
+    free(r->rows);
+    free(r->file);
+    memset(r, 0, sizeof *r);
+}
+
+/* Forget a value that could not be read; validation then knows it was given, not missing. */
+static void mark_invalid(tw_row *r, tw_field f)
+{
+    free(r->text[f]);
+    r->text[f] = NULL;
+    r->num[f] = 0;
+    r->present &= ~bit(f);
+    r->invalid |= bit(f);
+}
+
+/* Length of the UTF-8 sequence at s (n bytes available) with its code point in *cp, or 0 when
+ * the bytes are not UTF-8 (overlong forms, surrogates and values above U+10FFFF included). */
+static size_t utf8_decode(const unsigned char *s, size_t n, uint32_t *cp)
+{
+    size_t len;
+    uint32_t c, min;
+    if (s[0] < 0x80) {
+        *cp = s[0];
+        return 1;
+    }
+    if ((s[0] & 0xE0) == 0xC0) {
+        len = 2, c = s[0] & 0x1Fu, min = 0x80;
+    } else if ((s[0] & 0xF0) == 0xE0) {
+        len = 3, c = s[0] & 0x0Fu, min = 0x800;
+    } else if ((s[0] & 0xF8) == 0xF0) {
+        len = 4, c = s[0] & 0x07u, min = 0x10000;
+    } else {
+        return 0;
+    }
+    if (len > n)
+        return 0;
+    for (size_t i = 1; i < len; i++) {
+        if ((s[i] & 0xC0) != 0x80)
+            return 0;
+        c = (c << 6) | (s[i] & 0x3Fu);
+    }
+    if (c < min || c > 0x10FFFF || (c >= 0xD800 && c <= 0xDFFF))
+        return 0;
+    *cp = c;
+    return len;
+}
+
+/* C0 and C1 control characters and DEL. */
+static int is_control(uint32_t cp)
+{
+    return cp < 0x20 || cp == 0x7F || (cp >= 0x80 && cp <= 0x9F);
+}
+
+char *tw_excerpt(const char *s, size_t len)
+{
+    const unsigned char *u = (const unsigned char *)s;
+    char *out = malloc(EXCERPT_BYTES + 8);
+    if (!out)
+        return NULL;
+    size_t i = 0, o = 0;
+    while (i < len && o < EXCERPT_BYTES) {
+        uint32_t cp;
+        size_t n = utf8_decode(u + i, len - i, &cp);
+        if (n == 0 || is_control(cp)) {
+            out[o++] = '?';
+            i += n ? n : 1;
+        } else if (o + n <= EXCERPT_BYTES) {
+            memcpy(out + o, s + i, n);
+            o += n;
+            i += n;
+        } else {
+            break;
+        }
+    }
+    if (i < len) {
+        memcpy(out + o, "...", 3);
+        o += 3;
+    }
+    out[o] = '\0';
+    return out;
+}
+
+/* Text that may run over several lines on a label. */
+static int allows_line_breaks(tw_field f)
+{
+    return f == TW_F_DESCRIPTION || f == TW_F_LOCATION;
+}
+
+/* CR LF and lone CR become LF, in place. */
+static void normalize_line_breaks(char *s)
+{
+    char *w = s;
+    for (const char *p = s; *p; p++) {
+        if (*p == '\r') {
+            *w++ = '\n';
+            if (p[1] == '\n')
+                p++;
+        } else {
+            *w++ = *p;
+        }
+    }
+    *w = '\0';
+}
+
+/* NULL when v is acceptable text for f, else what is wrong with it (static string or printf
+ * format taking one code point). */
+static const char *text_problem(tw_field f, const char *v, uint32_t *bad_cp)
+{
+    const unsigned char *u = (const unsigned char *)v;
+    size_t len = strlen(v);
+    for (size_t i = 0; i < len;) {
+        uint32_t cp;
+        size_t n = utf8_decode(u + i, len - i, &cp);
+        if (n == 0)
+            return "expected UTF-8 text, found bytes that are not UTF-8";
+        if (is_control(cp) && !(cp == '\n' && allows_line_breaks(f))) {
+            *bad_cp = cp;
+            return cp == '\n' ? "expected a single line, found a line break"
+                              : "expected printable text, found control character";
+        }
+        i += n;
+    }
+    return NULL;
+}
+
+void tw_row_set_text(tw_row *r, const tw_column *c, const char *s, size_t len, tw_diags *d)
+{
+    tw_field f = c->field;
+    if (r->invalid & bit(f))
+        return;
+    if (memchr(s, '\0', len)) {
+        tw_row_diag(d, r, TW_ERROR, f, c->name,
+                    "expected printable text, found control character U+0000");
+        mark_invalid(r, f);
+        return;
+    }
+    char *v = tw_strndup(s, len);
+    if (!v) {
+        tw_row_diag(d, r, TW_ERROR, f, c->name, "out of memory");
+        mark_invalid(r, f);
+        return;
+    }
+    tw_trim(v);
+    normalize_line_breaks(v);
+    if (!*v) {
+        free(v);
+        return;
+    }
+    size_t max = f == TW_F_EQUIPMENT_ID ? TW_MAX_ID_BYTES : TW_MAX_TEXT_BYTES;
+    size_t n = strlen(v);
+    uint32_t cp = 0;
+    const char *problem = text_problem(f, v, &cp);
+    if (n > max) {
+        tw_row_diag(d, r, TW_ERROR, f, c->name, "expected at most %zu bytes, got %zu", max, n);
+    } else if (problem && cp) {
+        tw_row_diag(d, r, TW_ERROR, f, c->name, "%s U+%04X", problem, (unsigned)cp);
+    } else if (problem) {
+        tw_row_diag(d, r, TW_ERROR, f, c->name, "%s", problem);
+    } else {
+        free(r->text[f]);
+        r->text[f] = v;
+        r->present |= bit(f);
+        return;
+    }
+    free(v);
+    mark_invalid(r, f);
+}
+
+/* Unit of a field that can be given in more than one unit, for messages. */
+static const char *canonical_unit(tw_field f)
+{
+    return f == TW_F_INCIDENT_ENERGY_CAL ? "cal/cm2" : "mm";
+}
+
+void tw_row_set_number(tw_row *r, const tw_column *c, double v, tw_diags *d)
+{
+    tw_field f = c->field;
+    if (r->invalid & bit(f))
+        return;
+    if (!isfinite(v)) {
+        tw_row_diag(d, r, TW_ERROR, f, c->name, "expected a finite number");
+        mark_invalid(r, f);
+        return;
+    }
+    if (c->kind == TW_KIND_INTEGER && v != floor(v)) {
+        tw_row_diag(d, r, TW_ERROR, f, c->name, "expected a whole number, got %g", v);
+        mark_invalid(r, f);
+        return;
+    }
+    double cv = v * c->to_canonical;
+    if (!(r->present & bit(f))) {
+        r->num[f] = cv;
+        r->present |= bit(f);
+        return;
+    }
+    double old = r->num[f];
+    if (fabs(old - cv) <= UNIT_AGREEMENT * fmax(fabs(old), fabs(cv))) {
+        r->num[f] = fmax(old, cv); /* the two differ by rounding: keep the safer, larger one */
+        return;
+    }
+    const char *unit = canonical_unit(f);
+    tw_row_diag(d, r, TW_ERROR, f, c->name,
+                "%g is %g %s, but another unit of the same field in this row gives %g %s; "
+                "expected both to agree (within 1 %%)",
+                v, cv, unit, old, unit);
+    mark_invalid(r, f);
+}
+
+int tw_parse_yes_no(const char *s, int *out)
+{
+    static const struct {
+        const char *word;
+        int value;
+    } words[] = {{"yes", 1}, {"no", 0},  {"true", 1}, {"false", 0},
+                 {"y", 1},   {"n", 0},   {"1", 1},    {"0", 0}};
+    for (size_t i = 0; i < sizeof words / sizeof words[0]; i++) {
+        if (tw_strcaseeq(s, words[i].word)) {
+            *out = words[i].value;
+            return 0;
+        }
+    }
+    return -1;
+}
+
+/* Report a cell that does not hold the expected kind of value. */
+static void bad_cell(tw_row *r, const tw_column *c, const char *expected, const char *s,
+                     size_t len, tw_diags *d)
+{
+    char *ex = tw_excerpt(s, len);
+    tw_row_diag(d, r, TW_ERROR, c->field, c->name, "expected %s, got '%s'", expected,
+                ex ? ex : "?");
+    free(ex);
+    mark_invalid(r, c->field);
+}
+
+void tw_row_set_cell(tw_row *r, const tw_column *c, const char *s, size_t len, tw_diags *d)
+{
+    if (c->kind == TW_KIND_TEXT) {
+        tw_row_set_text(r, c, s, len, d);
+        return;
+    }
+    if (r->invalid & bit(c->field))
+        return;
+    const char *expected = c->kind == TW_KIND_BOOL      ? "yes or no"
+                           : c->kind == TW_KIND_INTEGER ? "a whole number"
+                                                        : "a decimal number";
+    if (memchr(s, '\0', len)) {
+        bad_cell(r, c, expected, s, len, d);
+        return;
+    }
+    char *v = tw_strndup(s, len);
+    if (!v) {
+        tw_row_diag(d, r, TW_ERROR, c->field, c->name, "out of memory");
+        mark_invalid(r, c->field);
+        return;
+    }
+    tw_trim(v);
+    double x = 0;
+    int yes = 0;
+    if (!*v) {
+        /* an empty cell is an absent value */
+    } else if (c->kind == TW_KIND_BOOL ? tw_parse_yes_no(v, &yes) != 0
+                                       : tw_parse_double(v, &x) != 0) {
+        bad_cell(r, c, expected, s, len, d);
+    } else if (c->kind == TW_KIND_INTEGER && x != floor(x)) {
+        bad_cell(r, c, expected, s, len, d);
+    } else {
+        tw_row_set_number(r, c, c->kind == TW_KIND_BOOL ? yes : x, d);
+    }
+    free(v);
+}
+
+static int ends_with_json(const char *path)
+{
+    size_t n = strlen(path);
+    return n >= 5 && tw_strcaseeq(path + n - 5, ".json");
+}
+
+static int looks_like_json(const char *data, size_t len)
+{
+    size_t i = 0;
+    if (len >= 3 && memcmp(data, "\xEF\xBB\xBF", 3) == 0)
+        i = 3;
+    while (i < len && (data[i] == ' ' || data[i] == '\t' || data[i] == '\r' || data[i] == '\n'))
+        i++;
+    return i < len && data[i] == '{';
+}
+
+int tw_results_read(const char *path, tw_results *out, tw_diags *d)
+{
+    memset(out, 0, sizeof *out);
+    char err[1024] = "";
+    size_t len = 0;
+    char *data = tw_read_file(path, &len, err, sizeof err);
+    if (!data) {
+        /* tw_read_file's message starts with the path, which the finding already names */
+        size_t plen = strlen(path);
+        int named = strncmp(err, path, plen) == 0 && err[plen] == ':' && err[plen + 1] == ' ';
+        const char *reason = named ? err + plen + 2 : err;
+        tw_source src = {path, 0, NULL};
+        tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "%s", reason);
+        return -1;
+    }
+    int rc = ends_with_json(path) || looks_like_json(data, len)
+                 ? tw_results_read_json(path, data, len, out, d)
+                 : tw_results_read_csv(path, data, len, out, d);
+    free(data);
+    return rc;
+}
