@@ -30,6 +30,7 @@ static const tw_rgb STRIPE = {0.94, 0.94, 0.94};
 static const tw_rgb RULE = {0.70, 0.70, 0.70};
 static const tw_rgb INK = {0.10, 0.10, 0.10};
 static const tw_rgb PLOT_LINE = {0.10, 0.25, 0.55};
+static const tw_rgb RISE_BAND = {0.99, 0.88, 0.88};
 
 typedef struct {
     const tw_summary_input *in;
@@ -215,15 +216,15 @@ static const struct {
     const char *title;
     double width;
 } columns[COL_COUNT] = {
-    [COL_ID] = {"Equipment ID", 92},
-    [COL_VOLTS] = {"Voltage", 44},
-    [COL_SCENARIO] = {"Governing scenario", 72},
-    [COL_ENERGY] = {"Incident energy", 92},
-    [COL_BOUNDARY] = {"Arc-flash boundary", 82},
-    [COL_PPE] = {"Site PPE level", 160},
-    [COL_SIGNAL] = {"Signal word", 50},
-    [COL_REVIEW] = {"Review due", 52},
-    [COL_RISE] = {"Energy rises below", 76},
+    [COL_ID] = {"Equipment ID", 86},
+    [COL_VOLTS] = {"Voltage", 42},
+    [COL_SCENARIO] = {"Governing scenario", 66},
+    [COL_ENERGY] = {"Incident energy", 132},
+    [COL_BOUNDARY] = {"Arc-flash boundary", 96},
+    [COL_PPE] = {"Site PPE level", 144},
+    [COL_SIGNAL] = {"Signal word", 48},
+    [COL_REVIEW] = {"Review due", 50},
+    [COL_RISE] = {"Energy rises below", 56},
 };
 
 typedef struct {
@@ -335,6 +336,17 @@ static void table_header(writer *w, const table_row *head)
 
 static void table_intro(writer *w)
 {
+    const tw_summary_input *in = w->in;
+    const tw_label *first = in->buses->count ? &in->labels[0] : NULL;
+    char study[600];
+    snprintf(study, sizeof study, "Study %s of %s; results from %s; %zu bus%s; printed %s.",
+             first ? label_value(first, TW_L_STUDY_ID, "-") : "-",
+             first ? label_value(first, TW_L_STUDY_DATE, "-") : "-", in->results_name,
+             in->buses->count, in->buses->count == 1 ? "" : "es", in->date);
+    double pt = tw_fit_size(w->doc.regular, study, PAGE_W - 2 * MARGIN, 1, 8.5, 5);
+    if (pt > 0)
+        tw_draw_text(w->page, w->doc.regular, pt, MARGIN, w->y - 10, study, strlen(study), INK);
+    w->y -= 16;
     static const char *const lines[] = {
         "One row per bus, as its label reads: the governing scenario is the one with the most "
         "incident energy (ties: the larger boundary); values are rounded toward safety.",
@@ -429,15 +441,33 @@ static void bar_legend(writer *w, double y)
     }
 }
 
+/* The site's PPE ratings as dashed vertical lines, each with its rating on top. */
+static void bar_ppe_lines(writer *w, scale s, double x0, double x1, double bottom, double top)
+{
+    const tw_site *site = w->in->site;
+    for (size_t k = 0; site && k < site->ppe_level_count; k++) {
+        double r = site->ppe_levels[k].arc_rating_cal_cm2;
+        if (!(r >= s.lo && r <= s.hi))
+            continue;
+        double x = map(r, s, x0, x1);
+        dashed(w->page, x, bottom, x, top + 4, 0.8, INK);
+        char t[32];
+        snprintf(t, sizeof t, "%g", r);
+        text_centre(w, 1, 7, x, top + 6, t, INK);
+    }
+}
+
 /* One page of bars, buses [from, to). */
 static void bar_page(writer *w, size_t from, size_t to, scale s)
 {
     const tw_summary_input *in = w->in;
     double x0 = MARGIN + BAR_LABEL_W, x1 = PAGE_W - MARGIN - 30;
-    double top = w->y - 14, bottom = top - (double)(to - from) * BAR_ROW;
     text(w, 0, 7.5, MARGIN, w->y - 8, "Governing incident energy of each bus as its label "
          "prints it (rounded up); a bus assessed by PPE category shows the category's arc "
          "rating.", INK);
+    double top = w->y - 30, bottom = top - (double)(to - from) * BAR_ROW;
+    axis(w, s, 1, bottom, x0, x1, top - bottom);
+    bar_ppe_lines(w, s, x0, x1, bottom, top);
     for (size_t i = from; i < to; i++) {
         const tw_label *l = &in->labels[i];
         double yc = top - (double)(i - from + 0.5) * BAR_ROW, v = bus_rating(l);
@@ -453,24 +483,14 @@ static void bar_page(writer *w, size_t from, size_t to, scale s)
                      l->signal == TW_SIGNAL_DANGER ? TW_SAFETY_RED : TW_SAFETY_ORANGE);
         char t[32];
         snprintf(t, sizeof t, "%.1f", v);
+        double tw = width_of(w, 0, 6.5, t);
+        tw_draw_fill(w->page, (tw_box){xe + 2, yc - 4, tw + 2, 8}, TW_WHITE);
         text(w, 0, 6.5, xe + 3, yc - 2.3, t, INK);
     }
-    axis(w, s, 1, bottom, x0, x1, top - bottom);
     tw_draw_line(w->page, x0, bottom, x1, bottom, 0.8, INK);
     tw_draw_line(w->page, x0, bottom, x0, top, 0.8, INK);
     text_centre(w, 0, 7.5, (x0 + x1) / 2, bottom - 22,
                 "incident energy at the working distance (cal/cm2)", INK);
-    const tw_site *site = in->site;
-    for (size_t k = 0; site && k < site->ppe_level_count; k++) {
-        double r = site->ppe_levels[k].arc_rating_cal_cm2;
-        if (!(r >= s.lo && r <= s.hi))
-            continue;
-        double x = map(r, s, x0, x1);
-        dashed(w->page, x, bottom, x, top + 4, 0.8, INK);
-        char t[32];
-        snprintf(t, sizeof t, "%g", r);
-        text_centre(w, 1, 7, x, top + 6, t, INK);
-    }
     bar_legend(w, bottom - 36);
     w->y = bottom - 50;
 }
@@ -488,15 +508,17 @@ static int draw_bar_chart(writer *w)
             hi = in->site->ppe_levels[k].arc_rating_cal_cm2;
     scale s = make_scale(0, hi > 0 ? hi * 1.05 : 1, 8);
     s.lo = 0;
-    double room = PAGE_H - 2 * MARGIN - FOOTER_H - 46 - 14 - 60 - 10;
-    size_t per_page = (size_t)(room / BAR_ROW);
-    for (size_t from = 0; from < n || from == 0; from += per_page) {
-        if (new_page(w, from ? "Incident energy by bus (continued)" : "Incident energy by bus")
+    /* From the chart's top (below the heading and the note) to the room the axis title and
+     * legend need above the footer; the buses are then spread evenly over the pages. */
+    double room = (PAGE_H - MARGIN - 46 - 30) - (CONTENT_BOTTOM + 50);
+    size_t fit = (size_t)(room / BAR_ROW);
+    size_t pages = n ? (n + fit - 1) / fit : 1;
+    size_t per_page = n ? (n + pages - 1) / pages : 1;
+    for (size_t p = 0, from = 0; p < pages; p++, from += per_page) {
+        if (new_page(w, p ? "Incident energy by bus (continued)" : "Incident energy by bus")
             != 0)
             return -1;
         bar_page(w, from, from + per_page < n ? from + per_page : n, s);
-        if (n == 0)
-            break;
     }
     return w->failed ? -1 : 0;
 }
@@ -536,14 +558,18 @@ static void sweep_plot(writer *w, const tw_envelope *e, double bx, double by)
     scale sy = make_scale(0, fmax(ehi, isnan(next) ? 0 : next) * 1.08, 5);
     sy.lo = 0;
     text(w, 1, 9, bx, by + PLOT_H - 12, e->equipment_id, INK);
-    text(w, 0, 7, bx, by + PLOT_H - 22, "incident energy against source fault current, by "
-         "scenario", TW_GREY);
+    if (e->rises) {
+        /* The device's threshold lies somewhere between the two scenarios: shade the gap. */
+        double xa = map(e->sweep[e->rise_index].source_ka, sx, x0, x1);
+        double xb = map(e->rises_below_ka, sx, x0, x1);
+        tw_draw_fill(w->page, (tw_box){xa, y0, xb - xa, y1 - y0}, RISE_BAND);
+    }
     axis(w, sx, 1, y0, x0, x1, y1 - y0);
     axis(w, sy, 0, x0, y0, y1, x1 - x0);
     tw_draw_line(w->page, x0, y0, x1, y0, 0.8, INK);
     tw_draw_line(w->page, x0, y0, x0, y1, 0.8, INK);
     text_centre(w, 0, 7, (x0 + x1) / 2, by + 8, "source fault current (kA)", INK);
-    text(w, 0, 7, bx, y1 + 5, "cal/cm2", INK);
+    text(w, 0, 7, bx, y1 + 6, "incident energy (cal/cm2)", INK);
     for (size_t k = 0; site && k < site->ppe_level_count; k++) {
         double r = site->ppe_levels[k].arc_rating_cal_cm2;
         if (!(r > sy.lo && r <= sy.hi))
@@ -552,7 +578,7 @@ static void sweep_plot(writer *w, const tw_envelope *e, double bx, double by)
         dashed(w->page, x0, y, x1, y, 0.6, TW_GREY);
         char t[64];
         snprintf(t, sizeof t, "PPE %g", r);
-        text_right(w, 0, 6.5, x1 - 2, y + 2, t, TW_GREY);
+        text(w, 0, 6.5, x0 + 3, y + 2, t, TW_GREY);
     }
     if (e->rises) {
         double x = map(e->rises_below_ka, sx, x0, x1);
@@ -592,7 +618,8 @@ static int draw_sweeps(writer *w)
             if (!plotted)
                 text(w, 0, 7.5, MARGIN, w->y - 8,
                      "Buses with a sweep of the source fault current. Red: the points after "
-                     "the energy rises (docs/envelope.md); dashed grey: the site's PPE levels.",
+                     "the energy rises, and the gap in which it rises (docs/envelope.md); "
+                     "dashed grey: the site's PPE levels.",
                      INK);
         }
         double col = (double)(slot % 2), row = (double)((slot % 4) / 2);
