@@ -10,6 +10,8 @@
 #include "tw_analysis.h"
 #include "tw_results.h"
 #include "tw_scenario.h"
+#include "tw_site.h"
+#include "tw_validate.h"
 
 /* ---- infinite bus ----------------------------------------------------------------------- */
 
@@ -382,6 +384,185 @@ static void envelope_should_accept_an_empty_bus_and_free_twice(void **state)
     tw_envelope_free(NULL);
 }
 
+/* ---- physics checks in tagwright check (validate.c) -------------------------------------- */
+
+typedef struct {
+    tw_results r;
+    tw_bus_set s;
+    tw_diags d;
+} checked;
+
+#define PHYS_HEAD                                                                               \
+    "equipment_id,study_id,study_date,nominal_voltage_v,equipment_type,incident_energy_cal_cm2," \
+    "working_distance_mm,arc_flash_boundary_mm,distance_exponent,bolted_fault_ka,"            \
+    "arcing_current_ka,clearing_time_s,gap_mm,xfmr_kva,xfmr_z_percent,xfmr_secondary_v,"      \
+    "motor_contribution_ka\n"
+
+static void run_checks(checked *c, const char *csv)
+{
+    memset(c, 0, sizeof *c);
+    tw_diags_init(&c->d);
+    assert_int_equal(tw_results_read_csv("physics.csv", csv, strlen(csv), &c->r, &c->d), 0);
+    assert_int_equal(tw_bus_set_build(&c->r, &c->s), 0);
+    tw_validate(&c->r, &c->s, NULL, &c->d);
+}
+
+static void checked_free(checked *c)
+{
+    tw_bus_set_free(&c->s);
+    tw_results_free(&c->r);
+    tw_diags_free(&c->d);
+}
+
+/* The finding about field on line, or NULL. */
+static const tw_diag *finding(const checked *c, long line, const char *field)
+{
+    for (size_t i = 0; i < c->d.count; i++)
+        if (c->d.items[i].line == line && c->d.items[i].field &&
+            strstr(c->d.items[i].field, field))
+            return &c->d.items[i];
+    return NULL;
+}
+
+/* 1500 kVA, 480 V, 5.75 %Z: 31.378 kA infinite bus, plus 1.10 kA of motors = 32.478 kA.
+ * The limit with the 10 % tolerance is 35.73 kA: 35.5 kA passes, 36.0 kA is an error.
+ * E 8 cal/cm2 at 455 mm with x 1.641 gives 1445.7 mm, so the stated boundary matches. */
+static void bolted_current_above_the_infinite_bus_limit_should_be_an_error(void **state)
+{
+    (void)state;
+    checked c;
+    run_checks(&c, PHYS_HEAD
+               "T-A,S,2026-01-05,480,mcc,8,455,1446,1.641,35.5,20,0.1,25,1500,5.75,480,1.10\n"
+               "T-B,S,2026-01-05,480,mcc,8,455,1446,1.641,36.0,20,0.1,25,1500,5.75,480,1.10\n");
+    assert_null(finding(&c, 2, "bolted_fault_ka"));
+    const tw_diag *g = finding(&c, 3, "bolted_fault_ka");
+    assert_non_null(g);
+    assert_int_equal(g->severity, TW_ERROR);
+    assert_non_null(strstr(g->message, "32.48 kA"));
+    assert_non_null(strstr(g->message, "31.38 kA infinite bus"));
+    assert_int_equal(c.d.errors, 1);
+    checked_free(&c);
+}
+
+/* Without motor contribution the limit is 31.378 x 1.1 = 34.52 kA. */
+static void motor_contribution_should_raise_the_limit(void **state)
+{
+    (void)state;
+    checked c;
+    run_checks(&c, PHYS_HEAD
+               "T-A,S,2026-01-05,480,mcc,8,455,1446,1.641,35.0,20,0.1,25,1500,5.75,480,\n"
+               "T-B,S,2026-01-05,480,mcc,8,455,1446,1.641,35.0,20,0.1,25,1500,5.75,480,1.0\n");
+    assert_non_null(finding(&c, 2, "bolted_fault_ka"));
+    assert_null(finding(&c, 3, "bolted_fault_ka"));
+    checked_free(&c);
+}
+
+static void partial_transformer_data_should_be_a_warning(void **state)
+{
+    (void)state;
+    checked c;
+    run_checks(&c, PHYS_HEAD
+               "T-A,S,2026-01-05,480,mcc,8,455,1446,1.641,90,20,0.1,25,1500,,480,\n");
+    const tw_diag *g = finding(&c, 2, "xfmr_z_percent");
+    assert_non_null(g);
+    assert_int_equal(g->severity, TW_WARNING);
+    assert_int_equal(c.d.errors, 0);
+    checked_free(&c);
+}
+
+/* 1445.7 mm computed: 1380 mm is 4.5 % closer (fine), 1370 mm 5.2 % closer (warning),
+ * 1515 mm 4.8 % farther (fine), 1520 mm 5.1 % farther (warning). */
+static void a_boundary_off_by_more_than_5pct_should_be_a_warning_naming_both(void **state)
+{
+    (void)state;
+    checked c;
+    run_checks(&c, PHYS_HEAD
+               "T-A,S,2026-01-05,480,mcc,8,455,1380,1.641,,,,,,,,\n"
+               "T-B,S,2026-01-05,480,mcc,8,455,1370,1.641,,,,,,,,\n"
+               "T-C,S,2026-01-05,480,mcc,8,455,1515,1.641,,,,,,,,\n"
+               "T-D,S,2026-01-05,480,mcc,8,455,1520,1.641,,,,,,,,\n");
+    assert_null(finding(&c, 2, "arc_flash_boundary"));
+    const tw_diag *g = finding(&c, 3, "arc_flash_boundary");
+    assert_non_null(g);
+    assert_int_equal(g->severity, TW_WARNING);
+    assert_non_null(strstr(g->message, "stated 1370 mm"));
+    assert_non_null(strstr(g->message, "1446 mm"));
+    assert_null(finding(&c, 4, "arc_flash_boundary"));
+    assert_non_null(finding(&c, 5, "arc_flash_boundary"));
+    assert_int_equal(c.d.errors, 0);
+    checked_free(&c);
+}
+
+/* No distance_exponent column value: the IEEE 1584-2002 Table 4 default for the type is used.
+ * Switchgear at 480 V, x 1.473: 4.8 cal/cm2 at 610 mm gives 1563.4 mm. */
+static void the_boundary_check_should_use_the_default_exponent_for_the_type(void **state)
+{
+    (void)state;
+    checked c;
+    run_checks(&c, PHYS_HEAD
+               "T-A,S,2026-01-05,480,switchgear,4.8,610,1564,,,,,,,,,\n"
+               "T-B,S,2026-01-05,480,switchgear,4.8,610,1300,,,,,,,,,\n"
+               "T-C,S,2026-01-05,480,busway,4.8,610,1300,,,,,,,,,\n");
+    assert_null(finding(&c, 2, "arc_flash_boundary"));
+    const tw_diag *g = finding(&c, 3, "arc_flash_boundary");
+    assert_non_null(g);
+    assert_non_null(strstr(g->message, "IEEE 1584-2002 Table 4"));
+    assert_null(finding(&c, 4, "arc_flash_boundary")); /* unknown type: no check */
+    checked_free(&c);
+}
+
+/* IEEE 1584-2018 ranges: 13.8 kV with a 10 mm gap and 70 kA; 480 V at 250 mm working
+ * distance; 120 V is outside the model. */
+static void values_outside_the_ieee1584_2018_ranges_should_be_warnings(void **state)
+{
+    (void)state;
+    checked c;
+    run_checks(&c, PHYS_HEAD
+               "T-A,S,2026-01-05,13800,switchgear,8,910,2000,,70,60,0.2,10,,,,\n"
+               "T-B,S,2026-01-05,480,mcc,8,250,795,1.641,30,15,0.1,25,,,,\n"
+               "T-C,S,2026-01-05,120,panelboard,1.5,455,520,1.641,5,2,0.1,25,,,,\n"
+               "T-D,S,2026-01-05,480,mcc,8,455,1446,1.641,106,50,0.1,76.2,,,,\n");
+    assert_non_null(finding(&c, 2, "gap_mm"));
+    assert_non_null(finding(&c, 2, "bolted_fault_ka"));
+    assert_non_null(finding(&c, 3, "working_distance"));
+    assert_non_null(finding(&c, 4, "nominal_voltage_v"));
+    assert_int_equal(finding(&c, 4, "nominal_voltage_v")->severity, TW_WARNING);
+    assert_null(finding(&c, 5, "bolted_fault_ka")); /* 106 kA and 76.2 mm: at the limits */
+    assert_null(finding(&c, 5, "gap_mm"));
+    checked_free(&c);
+}
+
+static void arcing_current_not_below_bolted_should_be_a_warning(void **state)
+{
+    (void)state;
+    checked c;
+    run_checks(&c, PHYS_HEAD
+               "T-A,S,2026-01-05,480,mcc,8,455,1446,1.641,20,19.9,0.1,25,,,,\n"
+               "T-B,S,2026-01-05,480,mcc,8,455,1446,1.641,20,20,0.1,25,,,,\n");
+    assert_null(finding(&c, 2, "arcing_current_ka"));
+    const tw_diag *g = finding(&c, 3, "arcing_current_ka");
+    assert_non_null(g);
+    assert_int_equal(g->severity, TW_WARNING);
+    checked_free(&c);
+}
+
+/* Common practice: 2 s. */
+static void a_clearing_time_above_2s_should_be_a_warning(void **state)
+{
+    (void)state;
+    checked c;
+    run_checks(&c, PHYS_HEAD
+               "T-A,S,2026-01-05,480,mcc,8,455,1446,1.641,20,12,2.0,25,,,,\n"
+               "T-B,S,2026-01-05,480,mcc,8,455,1446,1.641,20,12,2.01,25,,,,\n");
+    assert_null(finding(&c, 2, "clearing_time_s"));
+    const tw_diag *g = finding(&c, 3, "clearing_time_s");
+    assert_non_null(g);
+    assert_int_equal(g->severity, TW_WARNING);
+    assert_non_null(strstr(g->message, "common practice"));
+    assert_int_equal(c.d.errors, 0);
+    checked_free(&c);
+}
+
 #define FT(name) cmocka_unit_test_setup_teardown(name, setup_fixture, teardown_fixture)
 
 int main(void)
@@ -409,6 +590,14 @@ int main(void)
         FT(envelope_should_keep_the_worse_of_equal_currents),
         FT(envelope_should_handle_a_bus_with_only_a_ppe_category),
         FT(envelope_should_accept_an_empty_bus_and_free_twice),
+        cmocka_unit_test(bolted_current_above_the_infinite_bus_limit_should_be_an_error),
+        cmocka_unit_test(motor_contribution_should_raise_the_limit),
+        cmocka_unit_test(partial_transformer_data_should_be_a_warning),
+        cmocka_unit_test(a_boundary_off_by_more_than_5pct_should_be_a_warning_naming_both),
+        cmocka_unit_test(the_boundary_check_should_use_the_default_exponent_for_the_type),
+        cmocka_unit_test(values_outside_the_ieee1584_2018_ranges_should_be_warnings),
+        cmocka_unit_test(arcing_current_not_below_bolted_should_be_a_warning),
+        cmocka_unit_test(a_clearing_time_above_2s_should_be_a_warning),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
