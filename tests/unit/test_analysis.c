@@ -8,6 +8,7 @@
 #include "tw_test.h"
 
 #include "tw_analysis.h"
+#include "tw_label.h"
 #include "tw_results.h"
 #include "tw_scenario.h"
 #include "tw_site.h"
@@ -563,6 +564,51 @@ static void a_clearing_time_above_2s_should_be_a_warning(void **state)
     checked_free(&c);
 }
 
+/* ---- a missing boundary computed on the label (label.c) ----------------------------------- */
+
+/* An MCC at 480 V without a boundary or a distance_exponent: the IEEE 1584-2002 Table 4 value
+ * for an MCC, 1.641, is used: 455 x (8 / 1.2)^(1 / 1.641) = 1445.73 mm, printed rounded up;
+ * the note names the exponent and its source, and the canonical form (which the manifest
+ * stores as the label's content) carries the note. */
+static void a_missing_boundary_should_be_computed_with_the_default_exponent_and_say_so(void **s)
+{
+    (void)s;
+    checked c;
+    run_checks(&c, PHYS_HEAD "T-MCC,S,2026-01-05,480,mcc,8,455,,,,,,,,,,\n");
+    tw_site site;
+    assert_int_equal(tw_site_defaults(&site), 0);
+    tw_label l;
+    tw_label_derive(&c.s.buses[0], &site, "2026-02-01", &l, NULL);
+    assert_near(l.boundary_mm, 1446, 1e-9);
+    assert_string_equal(l.value[TW_L_ARC_FLASH_BOUNDARY], "4 ft 9 in (1446 mm)");
+    assert_string_equal(l.value[TW_L_BOUNDARY_NOTE], "computed from incident energy, distance "
+                        "exponent 1.641 (IEEE 1584-2002 Table 4, mcc)");
+    char *canon = tw_label_canonical(&l);
+    assert_non_null(canon);
+    assert_non_null(strstr(canon, "boundary_note=computed from incident energy"));
+    free(canon);
+    tw_label_free(&l);
+    tw_site_free(&site);
+    checked_free(&c);
+}
+
+/* Without an exponent and with a type the table does not know, nothing is computed. */
+static void a_missing_boundary_should_stay_missing_without_any_exponent(void **s)
+{
+    (void)s;
+    checked c;
+    run_checks(&c, PHYS_HEAD "T-BW,S,2026-01-05,480,busway,8,455,,,,,,,,,,\n");
+    tw_site site;
+    assert_int_equal(tw_site_defaults(&site), 0);
+    tw_label l;
+    assert_int_equal(tw_label_derive(&c.s.buses[0], &site, "2026-02-01", &l, NULL), -1);
+    assert_null(l.value[TW_L_ARC_FLASH_BOUNDARY]);
+    assert_null(l.value[TW_L_BOUNDARY_NOTE]);
+    tw_label_free(&l);
+    tw_site_free(&site);
+    checked_free(&c);
+}
+
 #define FT(name) cmocka_unit_test_setup_teardown(name, setup_fixture, teardown_fixture)
 
 int main(void)
@@ -598,6 +644,8 @@ int main(void)
         cmocka_unit_test(values_outside_the_ieee1584_2018_ranges_should_be_warnings),
         cmocka_unit_test(arcing_current_not_below_bolted_should_be_a_warning),
         cmocka_unit_test(a_clearing_time_above_2s_should_be_a_warning),
+        cmocka_unit_test(a_missing_boundary_should_be_computed_with_the_default_exponent_and_say_so),
+        cmocka_unit_test(a_missing_boundary_should_stay_missing_without_any_exponent),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
