@@ -300,6 +300,8 @@ static void check_ieee1584_range(const check_ctx *ctx, tw_row *r)
     if (!usable(r, TW_F_INCIDENT_ENERGY_CAL) || !usable(r, TW_F_NOMINAL_VOLTAGE_V))
         return;
     double v = r->num[TW_F_NOMINAL_VOLTAGE_V];
+    if (!tw_approach_for_voltage(v))
+        return; /* already an error of voltage-in-tables */
     const tw_ieee1584_range *rg = tw_ieee1584_range_for(v);
     if (!rg) {
         tw_row_diag(ctx->d, r, TW_WARNING, TW_F_NOMINAL_VOLTAGE_V, NULL,
