@@ -202,7 +202,7 @@ static void write_csv(FILE *f, const tw_envelope *env, const tw_bus_set *buses, 
 
 static void text_bus(FILE *f, const tw_envelope *e, const tw_bus *bus, int idw)
 {
-    char energy[32] = "-", afb[32] = "-";
+    char energy[400] = "-", afb[400] = "-"; /* any double with %.2f fits */
     if (!isnan(e->energy_cal))
         snprintf(energy, sizeof energy, "%.2f", e->energy_cal);
     else if (!isnan(e->rating_cal))

@@ -25,6 +25,8 @@
 #define TABLE_PT 7.5
 #define CELL_PAD 3.0
 #define MAX_PAGES 100000
+/* Room for any double printed with %.6f (309 integer digits at most). */
+#define NUM_CHARS 400
 
 static const tw_rgb STRIPE = {0.94, 0.94, 0.94};
 static const tw_rgb RULE = {0.70, 0.70, 0.70};
@@ -79,6 +81,27 @@ static const char *label_value(const tw_label *l, tw_label_key k, const char *fa
     return l->value[k] ? l->value[k] : fallback;
 }
 
+/* The site name right of the title: one line if it fits, else up to three smaller ones. */
+static void heading_site_name(writer *w, const char *name, double top)
+{
+    double avail = PAGE_W - 2 * MARGIN - width_of(w, 1, 14, "Arc-flash study summary") - 16;
+    double pt = tw_fit_size(w->doc.regular, name, avail, 1, 9, 6);
+    int max = 1;
+    if (pt == 0) {
+        max = 3;
+        pt = tw_fit_size(w->doc.regular, name, avail, max, 6, 3);
+    }
+    if (pt == 0)
+        pt = 3; /* 512 bytes at most (site settings): this fits three lines */
+    tw_span spans[3];
+    int n = tw_wrap(w->doc.regular, pt, name, avail, spans, max);
+    if (n > max)
+        n = max;
+    double h = n * pt * TW_LEADING;
+    tw_draw_lines(w->page, w->doc.regular, pt, PAGE_W - MARGIN - avail, top - 19 + h, avail, name,
+                  spans, n, TW_ALIGN_RIGHT, INK);
+}
+
 /* A new page with the document heading and a section title; sets w->y below them. */
 static int new_page(writer *w, const char *section)
 {
@@ -103,8 +126,8 @@ static int new_page(writer *w, const char *section)
     const tw_site *site = w->in->site;
     double top = PAGE_H - MARGIN;
     text(w, 1, 14, MARGIN, top - 14, "Arc-flash study summary", INK);
-    if (site && site->site_name)
-        text_right(w, 0, 9, PAGE_W - MARGIN, top - 12, site->site_name, INK);
+    if (site && site->site_name && *site->site_name)
+        heading_site_name(w, site->site_name, top);
     tw_draw_line(w->page, MARGIN, top - 21, PAGE_W - MARGIN, top - 21, 0.8, INK);
     text(w, 1, 11, MARGIN, top - 38, section, INK);
     w->y = top - 46;
@@ -170,7 +193,8 @@ static scale make_scale(double lo, double hi, int want)
 
 static double map(double v, scale s, double a, double b)
 {
-    return a + (v - s.lo) / (s.hi - s.lo) * (b - a);
+    double t = (v - s.lo) / (s.hi - s.lo);
+    return isfinite(t) ? a + t * (b - a) : a;
 }
 
 static void dashed(HPDF_Page p, double x0, double y0, double x1, double y1, double lw,
@@ -191,7 +215,7 @@ static void axis(writer *w, scale s, int horizontal, double base, double a, doub
         return;
     for (int i = 0; i <= n; i++) {
         double v = s.lo + i * s.step, at = map(v, s, a, b);
-        char t[32];
+        char t[NUM_CHARS];
         snprintf(t, sizeof t, "%.*f", s.decimals, v);
         if (horizontal) {
             if (grid_len > 0 && i > 0)
@@ -338,14 +362,34 @@ static void table_intro(writer *w)
 {
     const tw_summary_input *in = w->in;
     const tw_label *first = in->buses->count ? &in->labels[0] : NULL;
-    char study[600];
-    snprintf(study, sizeof study, "Study %s of %s; results from %s; %zu bus%s; printed %s.",
-             first ? label_value(first, TW_L_STUDY_ID, "-") : "-",
-             first ? label_value(first, TW_L_STUDY_DATE, "-") : "-", in->results_name,
-             in->buses->count, in->buses->count == 1 ? "" : "es", in->date);
+    char *study = tw_asprintf("Study %s of %s; results from %s; %zu bus%s; printed %s.",
+                              first ? label_value(first, TW_L_STUDY_ID, "-") : "-",
+                              first ? label_value(first, TW_L_STUDY_DATE, "-") : "-",
+                              in->results_name, in->buses->count,
+                              in->buses->count == 1 ? "" : "es", in->date);
+    if (!study) {
+        fail(w, "out of memory");
+        return;
+    }
+    /* A very long results path shrinks the line; past the smallest size it wraps. */
     double pt = tw_fit_size(w->doc.regular, study, PAGE_W - 2 * MARGIN, 1, 8.5, 5);
-    if (pt > 0)
+    if (pt > 0) {
         tw_draw_text(w->page, w->doc.regular, pt, MARGIN, w->y - 10, study, strlen(study), INK);
+    } else {
+        int n = tw_wrap(w->doc.regular, 5, study, PAGE_W - 2 * MARGIN, NULL, 0);
+        tw_span *spans = n > 0 ? malloc((size_t)n * sizeof *spans) : NULL;
+        if (!spans) {
+            free(study);
+            fail(w, "out of memory");
+            return;
+        }
+        n = tw_wrap(w->doc.regular, 5, study, PAGE_W - 2 * MARGIN, spans, n);
+        tw_draw_lines(w->page, w->doc.regular, 5, MARGIN, w->y - 4, PAGE_W - 2 * MARGIN, study,
+                      spans, n, TW_ALIGN_LEFT, INK);
+        w->y -= (n - 1) * 5 * TW_LEADING;
+        free(spans);
+    }
+    free(study);
     w->y -= 16;
     static const char *const lines[] = {
         "One row per bus, as its label reads: the governing scenario is the one with the most "
@@ -414,31 +458,60 @@ static double bus_rating(const tw_label *l)
     return l->arc_rating_cal;
 }
 
-static void bar_legend(writer *w, double y)
+#define LEGEND_X (MARGIN + 218)
+#define LEGEND_PT 7.0
+
+/* The PPE levels named in the legend, as one paragraph; NULL when out of memory. */
+static char *legend_text(const tw_site *site)
 {
-    const tw_site *site = w->in->site;
+    if (!site || !site->ppe_level_count)
+        return tw_strdup("the site's PPE levels: none configured");
+    char *t = tw_strdup("the site's PPE levels (arc rating, cal/cm2):");
+    for (size_t i = 0; t && i < site->ppe_level_count; i++) {
+        char *next = tw_asprintf("%s %g = %s%s", t, site->ppe_levels[i].arc_rating_cal_cm2,
+                                 site->ppe_levels[i].name ? site->ppe_levels[i].name : "",
+                                 i + 1 < site->ppe_level_count ? ";" : ".");
+        free(t);
+        t = next;
+    }
+    return t;
+}
+
+typedef struct {
+    char *text;
+    tw_span *spans;
+    int lines;
+} paragraph;
+
+static int legend_layout(writer *w, paragraph *p)
+{
+    double width = PAGE_W - MARGIN - LEGEND_X;
+    p->text = legend_text(w->in->site);
+    int n = p->text ? tw_wrap(w->doc.regular, LEGEND_PT, p->text, width, NULL, 0) : 0;
+    p->spans = n > 0 ? malloc((size_t)n * sizeof *p->spans) : NULL;
+    if (!p->spans)
+        return -1;
+    p->lines = tw_wrap(w->doc.regular, LEGEND_PT, p->text, width, p->spans, n);
+    if (p->lines > n)
+        p->lines = n;
+    return 0;
+}
+
+static double legend_height(const paragraph *p)
+{
+    return p->lines * LEGEND_PT * TW_LEADING;
+}
+
+static void bar_legend(writer *w, const paragraph *p, double top)
+{
+    double y = top - tw_baseline_drop(w->doc.regular, LEGEND_PT);
     tw_draw_fill(w->page, (tw_box){MARGIN, y - 1, 8, 7}, TW_SAFETY_ORANGE);
     text(w, 0, 7, MARGIN + 11, y, "WARNING", INK);
     tw_draw_fill(w->page, (tw_box){MARGIN + 55, y - 1, 8, 7}, TW_SAFETY_RED);
     text(w, 0, 7, MARGIN + 66, y, "DANGER (signal word on the label)", INK);
-    double x = MARGIN + 200;
-    dashed(w->page, x, y + 2.5, x + 14, y + 2.5, 0.8, INK);
-    char buf[160];
-    snprintf(buf, sizeof buf, "the site's PPE levels (arc rating, cal/cm2)%s",
-             site && site->ppe_level_count ? ":" : ": none configured");
-    text(w, 0, 7, x + 18, y, buf, INK);
-    x += 22 + width_of(w, 0, 7, buf);
-    for (size_t i = 0; site && i < site->ppe_level_count; i++) {
-        snprintf(buf, sizeof buf, "%g = %s%s", site->ppe_levels[i].arc_rating_cal_cm2,
-                 site->ppe_levels[i].name, i + 1 < site->ppe_level_count ? ";" : "");
-        double bw = width_of(w, 0, 7, buf);
-        if (x + bw > PAGE_W - MARGIN) {
-            x = MARGIN + 218;
-            y -= 9;
-        }
-        text(w, 0, 7, x, y, buf, INK);
-        x += bw + 5;
-    }
+    dashed(w->page, LEGEND_X - 18, y + 2.5, LEGEND_X - 4, y + 2.5, 0.8, INK);
+    tw_draw_lines(w->page, w->doc.regular, LEGEND_PT, LEGEND_X, top, PAGE_W - MARGIN - LEGEND_X,
+                  p->text, p->spans, p->lines, TW_ALIGN_LEFT, INK);
 }
 
 /* The site's PPE ratings as dashed vertical lines, each with its rating on top. */
@@ -451,14 +524,36 @@ static void bar_ppe_lines(writer *w, scale s, double x0, double x1, double botto
             continue;
         double x = map(r, s, x0, x1);
         dashed(w->page, x, bottom, x, top + 4, 0.8, INK);
-        char t[32];
+        char t[NUM_CHARS];
         snprintf(t, sizeof t, "%g", r);
         text_centre(w, 1, 7, x, top + 6, t, INK);
     }
 }
 
+/* An equipment ID right-aligned before its bar: shrunk to fit one line, else two lines (64
+ * bytes at most, TW_MAX_ID_BYTES, fit two lines at 3 pt). */
+static void bar_id(writer *w, const char *id, double x0, double yc)
+{
+    double width = BAR_LABEL_W - 8;
+    double pt = tw_fit_size(w->doc.regular, id, width, 1, 7, 4);
+    int max = 1;
+    if (pt == 0) {
+        max = 2;
+        pt = tw_fit_size(w->doc.regular, id, width, max, 4, 2.5);
+    }
+    if (pt == 0)
+        pt = 2.5;
+    tw_span spans[2];
+    int n = tw_wrap(w->doc.regular, pt, id, width, spans, max);
+    if (n > max)
+        n = max;
+    double h = n * pt * TW_LEADING;
+    tw_draw_lines(w->page, w->doc.regular, pt, x0 - 5 - width, yc + h / 2, width, id, spans, n,
+                  TW_ALIGN_RIGHT, INK);
+}
+
 /* One page of bars, buses [from, to). */
-static void bar_page(writer *w, size_t from, size_t to, scale s)
+static void bar_page(writer *w, size_t from, size_t to, scale s, const paragraph *legend)
 {
     const tw_summary_input *in = w->in;
     double x0 = MARGIN + BAR_LABEL_W, x1 = PAGE_W - MARGIN - 30;
@@ -472,16 +567,13 @@ static void bar_page(writer *w, size_t from, size_t to, scale s)
         const tw_label *l = &in->labels[i];
         double yc = top - (double)(i - from + 0.5) * BAR_ROW, v = bus_rating(l);
         const char *id = label_value(l, TW_L_EQUIPMENT_ID, in->envelopes[i].equipment_id);
-        double pt = tw_fit_size(w->doc.regular, id, BAR_LABEL_W - 8, 1, 7, 4);
-        if (pt > 0)
-            tw_draw_text(w->page, w->doc.regular, pt, x0 - 5 - tw_text_width(w->doc.regular, pt,
-                         id, strlen(id)), yc - 2.5, id, strlen(id), INK);
+        bar_id(w, id, x0, yc);
         if (!(v > 0) || !isfinite(v))
             continue;
         double xe = map(fmin(v, s.hi), s, x0, x1);
         tw_draw_fill(w->page, (tw_box){x0, yc - BAR_ROW * 0.35, xe - x0, BAR_ROW * 0.7},
                      l->signal == TW_SIGNAL_DANGER ? TW_SAFETY_RED : TW_SAFETY_ORANGE);
-        char t[32];
+        char t[NUM_CHARS];
         snprintf(t, sizeof t, "%.1f", v);
         double tw = width_of(w, 0, 6.5, t);
         tw_draw_fill(w->page, (tw_box){xe + 2, yc - 4, tw + 2, 8}, TW_WHITE);
@@ -491,8 +583,8 @@ static void bar_page(writer *w, size_t from, size_t to, scale s)
     tw_draw_line(w->page, x0, bottom, x0, top, 0.8, INK);
     text_centre(w, 0, 7.5, (x0 + x1) / 2, bottom - 22,
                 "incident energy at the working distance (cal/cm2)", INK);
-    bar_legend(w, bottom - 36);
-    w->y = bottom - 50;
+    bar_legend(w, legend, bottom - 30);
+    w->y = bottom - 30 - legend_height(legend);
 }
 
 static int draw_bar_chart(writer *w)
@@ -510,16 +602,30 @@ static int draw_bar_chart(writer *w)
     s.lo = 0;
     /* From the chart's top (below the heading and the note) to the room the axis title and
      * legend need above the footer; the buses are then spread evenly over the pages. */
-    double room = (PAGE_H - MARGIN - 46 - 30) - (CONTENT_BOTTOM + 50);
-    size_t fit = (size_t)(room / BAR_ROW);
+    paragraph legend = {0};
+    if (legend_layout(w, &legend) != 0) {
+        free(legend.text);
+        fail(w, "out of memory while laying out the chart legend");
+        return -1;
+    }
+    double room = (PAGE_H - MARGIN - 46 - 30) - (CONTENT_BOTTOM + 34 + legend_height(&legend));
+    size_t fit = room >= BAR_ROW ? (size_t)(room / BAR_ROW) : 0;
+    if (fit == 0) {
+        free(legend.text);
+        free(legend.spans);
+        fail(w, "the PPE level names are too long for the chart's legend");
+        return -1;
+    }
     size_t pages = n ? (n + fit - 1) / fit : 1;
     size_t per_page = n ? (n + pages - 1) / pages : 1;
     for (size_t p = 0, from = 0; p < pages; p++, from += per_page) {
         if (new_page(w, p ? "Incident energy by bus (continued)" : "Incident energy by bus")
             != 0)
-            return -1;
-        bar_page(w, from, from + per_page < n ? from + per_page : n, s);
+            break;
+        bar_page(w, from, from + per_page < n ? from + per_page : n, s, &legend);
     }
+    free(legend.text);
+    free(legend.spans);
     return w->failed ? -1 : 0;
 }
 
@@ -576,14 +682,14 @@ static void sweep_plot(writer *w, const tw_envelope *e, double bx, double by)
             continue;
         double y = map(r, sy, y0, y1);
         dashed(w->page, x0, y, x1, y, 0.6, TW_GREY);
-        char t[64];
+        char t[NUM_CHARS];
         snprintf(t, sizeof t, "PPE %g", r);
         text(w, 0, 6.5, x0 + 3, y + 2, t, TW_GREY);
     }
     if (e->rises) {
         double x = map(e->rises_below_ka, sx, x0, x1);
         dashed(w->page, x, y0, x, y1, 0.9, TW_SAFETY_RED);
-        char t[64];
+        char t[NUM_CHARS];
         snprintf(t, sizeof t, "energy rises below %.2f kA", e->rises_below_ka);
         double tw = width_of(w, 1, 7, t);
         double tx = x + 3 + tw > x1 ? x - 3 - tw : x + 3;
