@@ -9,6 +9,7 @@
  *     E_new = E_old x (t_new / t_old)
  * and the arc-flash boundary follows from the new energy with the distance exponent x:
  *     AFB = D x (E / 1.2)^(1/x)
+ * (tw_afb_mm() of tw_analysis.h; the caller finds x, e.g. with tw_distance_exponent_for()).
  * Both are estimates next to a re-run study, which is always the proper source; the warnings
  * below say when the estimate is on weak ground.
  */
@@ -19,19 +20,6 @@
 
 #include "tw_date.h"
 #include "tw_label.h"
-
-/* ---- distance exponent and arc-flash boundary ------------------------------------------- */
-
-/* The distance exponent x of IEEE 1584-2002 Table 4 for an equipment type ("switchgear",
- * "switchboard", "mcc", "panelboard", "cable", "open-air"; any case) at a nominal voltage in
- * volts. Returns 0 when the table has no row for it (unknown type, below 208 V, above 15 kV,
- * or MCC/panelboard above 1 kV). *row_name, when not NULL, is set to the row used. */
-double tw_rescale_exponent_for(const char *equipment_type, double volts, const char **row_name);
-
-/* Arc-flash boundary in mm: the distance at which energy_cal (at working distance
- * distance_mm) falls to 1.2 cal/cm2 with exponent x. NAN when any input is not finite and
- * above 0. */
-double tw_rescale_afb_mm(double energy_cal, double distance_mm, double exponent);
 
 /* ---- rescaling after a setting change ---------------------------------------------------- */
 

@@ -14,6 +14,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "tw_analysis.h"
 #include "tw_atomic.h"
 #include "tw_batch.h"
 #include "tw_cli.h"
@@ -133,8 +134,8 @@ static int exponent_of(const tw_row *g, const char *eq, double *x, tw_diags *d)
     double volts = 0;
     row_number(g, TW_F_NOMINAL_VOLTAGE_V, &volts);
     const char *type = tw_row_has(g, TW_F_EQUIPMENT_TYPE) ? g->text[TW_F_EQUIPMENT_TYPE] : NULL;
-    *x = tw_rescale_exponent_for(type, volts, NULL);
-    if (*x > 0)
+    *x = tw_distance_exponent_for(type, volts, NULL);
+    if (*x > 0)   /* NAN when the table has no row */
         return 0;
     row_error(d, g, eq, TW_F_DISTANCE_EXPONENT,
               "missing, and IEEE 1584-2002 Table 4 has no exponent for this equipment type and "

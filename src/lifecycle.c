@@ -5,76 +5,19 @@
 #include <math.h>
 #include <string.h>
 
+#include "tw_analysis.h"
 #include "tw_rules.h"
-#include "tw_util.h"
-
-/*
- * IEEE 1584-2002, Table 4, "Factors for equipment and voltage classes": the distance exponent
- * x by equipment class and system voltage. From memory, verify against the edition in force.
- *     0.208-1 kV: open air 2.000, switchgear 1.473, MCC and panels 1.641, cable 2.000
- *     >1-15 kV:   open air 2.000, switchgear 0.973, cable 2.000 (no MCC/panel row)
- * A switchboard is looked up as switchgear: the table has no switchboard row, and the smaller
- * exponent gives the larger boundary above 1.2 cal/cm2 (our choice, toward safety).
- */
-typedef struct {
-    const char *type;           /* equipment_type as written in results (any case) */
-    const char *row;            /* the Table 4 row it is read from */
-    double lv;                  /* 208 V to 1 kV; 0: no row */
-    double mv;                  /* above 1 kV to 15 kV; 0: no row */
-} exponent_row;
-
-static const exponent_row exponent_table[] = {
-    {"open-air",   "open air",        2.000, 2.000},
-    {"open air",   "open air",        2.000, 2.000},
-    {"switchgear", "switchgear",      1.473, 0.973},
-    {"switchboard", "switchgear",     1.473, 0.973},
-    {"mcc",        "MCC and panels",  1.641, 0},
-    {"panelboard", "MCC and panels",  1.641, 0},
-    {"panel",      "MCC and panels",  1.641, 0},
-    {"cable",      "cable",           2.000, 2.000},
-};
-
-/* The voltage range IEEE 1584-2002 covers, V (its scope: 208 V to 15 kV). */
-#define IEEE1584_2002_MIN_V 208.0
-#define IEEE1584_2002_LV_MAX_V 1000.0
-#define IEEE1584_2002_MAX_V 15000.0
-
-double tw_rescale_exponent_for(const char *equipment_type, double volts, const char **row_name)
-{
-    if (!equipment_type || !(volts >= IEEE1584_2002_MIN_V && volts <= IEEE1584_2002_MAX_V))
-        return 0;
-    for (size_t i = 0; i < sizeof exponent_table / sizeof exponent_table[0]; i++) {
-        const exponent_row *r = &exponent_table[i];
-        if (!tw_strcaseeq(equipment_type, r->type))
-            continue;
-        double x = volts <= IEEE1584_2002_LV_MAX_V ? r->lv : r->mv;
-        if (x > 0 && row_name)
-            *row_name = r->row;
-        return x;
-    }
-    return 0;
-}
 
 static int positive(double v)
 {
     return isfinite(v) && v > 0;
 }
 
-/* NFPA 70E definition of the arc-flash boundary (energy 1.2 cal/cm2) with the IEEE 1584
- * distance relation E ~ 1/D^x. */
-double tw_rescale_afb_mm(double energy_cal, double distance_mm, double exponent)
-{
-    if (!positive(energy_cal) || !positive(distance_mm) || !positive(exponent))
-        return NAN;
-    double mm = distance_mm * pow(energy_cal / TW_AFB_ENERGY_CAL_CM2, 1.0 / exponent);
-    return isfinite(mm) ? mm : NAN;
-}
-
 /* Fill the parts common to both ways of rescaling. */
 static int finish(tw_rescale *r, double new_energy)
 {
     double rounded = tw_round_energy_up(new_energy);
-    double afb = tw_rescale_afb_mm(rounded, r->working_distance_mm, r->exponent);
+    double afb = tw_afb_mm(rounded, r->working_distance_mm, r->exponent);
     if (!positive(new_energy) || !positive(afb))
         return -1;
     r->new_energy_cal = new_energy;

@@ -1,82 +1,9 @@
-/* test_lifecycle.c - rescaling after a setting change (hand-computed cases), the IEEE 1584-2002
- * distance exponents, label comparison and review due dates across leap days. */
+/* test_lifecycle.c - rescaling after a setting change (hand-computed cases), label comparison and
+ * review due dates across leap days. The boundary formula and the IEEE 1584-2002 exponents are
+ * tested with the analysis module (test_analysis.c). */
 #include "tw_test.h"
 
 #include "tw_lifecycle.h"
-
-/* ---- distance exponents: IEEE 1584-2002 Table 4 (from memory, verify against the edition in
- * force) ---- */
-
-static void exponent_should_be_1_473_for_switchgear_at_480v(void **state)
-{
-    (void)state;
-    const char *row = NULL;
-    assert_near(tw_rescale_exponent_for("switchgear", 480, &row), 1.473, 1e-12);
-    assert_string_equal(row, "switchgear");
-    assert_near(tw_rescale_exponent_for("Switchboard", 480, NULL), 1.473, 1e-12);
-}
-
-static void exponent_should_be_0_973_for_switchgear_above_1kv(void **state)
-{
-    (void)state;
-    assert_near(tw_rescale_exponent_for("switchgear", 4160, NULL), 0.973, 1e-12);
-    assert_near(tw_rescale_exponent_for("SWITCHGEAR", 13800, NULL), 0.973, 1e-12);
-}
-
-static void exponent_should_be_1_641_for_mcc_and_panels_at_low_voltage_only(void **state)
-{
-    (void)state;
-    assert_near(tw_rescale_exponent_for("mcc", 480, NULL), 1.641, 1e-12);
-    assert_near(tw_rescale_exponent_for("panelboard", 208, NULL), 1.641, 1e-12);
-    /* Table 4 has no MCC/panel row above 1 kV: no exponent, the caller must be given one */
-    assert_true(tw_rescale_exponent_for("mcc", 4160, NULL) == 0);
-}
-
-static void exponent_should_be_2_for_cable_and_open_air(void **state)
-{
-    (void)state;
-    assert_near(tw_rescale_exponent_for("cable", 480, NULL), 2.0, 1e-12);
-    assert_near(tw_rescale_exponent_for("open-air", 13800, NULL), 2.0, 1e-12);
-}
-
-static void exponent_should_be_unknown_outside_208v_to_15kv_or_for_other_types(void **state)
-{
-    (void)state;
-    assert_true(tw_rescale_exponent_for("switchgear", 120, NULL) == 0);
-    assert_true(tw_rescale_exponent_for("switchgear", 34500, NULL) == 0);
-    assert_true(tw_rescale_exponent_for("busway", 480, NULL) == 0);
-    assert_true(tw_rescale_exponent_for(NULL, 480, NULL) == 0);
-    assert_true(tw_rescale_exponent_for("mcc", NAN, NULL) == 0);
-}
-
-/* ---- arc-flash boundary AFB = D x (E / 1.2)^(1/x) ---- */
-
-static void boundary_should_equal_working_distance_at_1_2_cal(void **state)
-{
-    (void)state;
-    /* (1.2 / 1.2)^(1/x) = 1, so AFB = D = 18 in = 457.2 mm for any x */
-    assert_near(tw_rescale_afb_mm(1.2, 457.2, 1.641), 457.2, 1e-9);
-    assert_near(tw_rescale_afb_mm(1.2, 457.2, 0.973), 457.2, 1e-9);
-}
-
-static void boundary_should_follow_the_distance_exponent(void **state)
-{
-    (void)state;
-    /* x = 2: energy 4.8 = 4 x 1.2, so AFB = D x 4^(1/2) = 2 D = 914.4 mm */
-    assert_near(tw_rescale_afb_mm(4.8, 457.2, 2.0), 914.4, 1e-9);
-    /* x = 1: AFB = D x E / 1.2 = 457.2 x 3 = 1371.6 mm */
-    assert_near(tw_rescale_afb_mm(3.6, 457.2, 1.0), 1371.6, 1e-9);
-}
-
-static void boundary_should_be_nan_for_unusable_inputs(void **state)
-{
-    (void)state;
-    assert_true(isnan(tw_rescale_afb_mm(0, 457.2, 1.641)));
-    assert_true(isnan(tw_rescale_afb_mm(5, -1, 1.641)));
-    assert_true(isnan(tw_rescale_afb_mm(5, 457.2, 0)));
-    assert_true(isnan(tw_rescale_afb_mm(NAN, 457.2, 1.641)));
-    assert_true(isnan(tw_rescale_afb_mm(1e300, 1e300, 0.01)));   /* overflows: not a boundary */
-}
 
 /* ---- rescaling by clearing time: E_new = E_old x t_new / t_old ---- */
 
@@ -275,14 +202,6 @@ static void review_window_should_count_across_a_leap_day(void **state)
 int main(void)
 {
     const struct CMUnitTest tests[] = {
-        cmocka_unit_test(exponent_should_be_1_473_for_switchgear_at_480v),
-        cmocka_unit_test(exponent_should_be_0_973_for_switchgear_above_1kv),
-        cmocka_unit_test(exponent_should_be_1_641_for_mcc_and_panels_at_low_voltage_only),
-        cmocka_unit_test(exponent_should_be_2_for_cable_and_open_air),
-        cmocka_unit_test(exponent_should_be_unknown_outside_208v_to_15kv_or_for_other_types),
-        cmocka_unit_test(boundary_should_equal_working_distance_at_1_2_cal),
-        cmocka_unit_test(boundary_should_follow_the_distance_exponent),
-        cmocka_unit_test(boundary_should_be_nan_for_unusable_inputs),
         cmocka_unit_test(rescale_should_scale_13_8kv_switchgear_from_0_38_to_0_30_s),
         cmocka_unit_test(rescale_should_round_energy_up_before_the_boundary),
         cmocka_unit_test(rescale_should_raise_energy_when_the_time_grows),
