@@ -301,7 +301,7 @@ static void add_lines(plan *P, row_kind kind, const char *caption, const char *t
 
 static void add_pair(plan *P, const char *caption, const char *value, int style)
 {
-    if (!value)
+    if (!value || !*value)
         add_lines(P, R_PAIR, caption, BLANK, V_BLANK, 8);
     else
         add_lines(P, R_PAIR, caption, value, style, 8);
