@@ -20,7 +20,7 @@
 
 #include "tw_diag.h"
 
-/* Limits (docs/limits.md); a value over a limit is an error, never truncated. */
+/* Limits (docs/permit.md); a value over a limit is an error, never truncated. */
 #define TW_JOB_MAX_ID_BYTES 64      /* work_order, equipment_id */
 #define TW_JOB_MAX_NAME_BYTES 200   /* crew names, approver roles, names, titles */
 #define TW_JOB_MAX_TEXT_BYTES 2000  /* free text and each list item */
