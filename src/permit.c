@@ -84,7 +84,7 @@ static const struct {
 #define HEADING_H 17.0
 #define SECTION_GAP 9.0
 #define CHECK_H 18.0        /* a checklist line with its boxes */
-#define SIGN_H 30.0         /* signature and date lines */
+#define SIGN_H 36.0         /* signature and date lines, and room below their captions */
 #define INITIALS_W 72.0
 #define MIN_PT 5.0
 
