@@ -50,12 +50,37 @@ static void require(const check_ctx *ctx, tw_row *r, tw_field f, const char *why
                     why);
 }
 
+/* A missing arc-flash boundary can be computed, D x (E / 1.2)^(1/x), only when the study gives
+ * its own distance exponent: a default exponent from a table may not match the method the
+ * study used, so without one the boundary stays an error (fail closed). */
+static void check_boundary_given(const check_ctx *ctx, tw_row *r)
+{
+    if (given(r, TW_F_ARC_FLASH_BOUNDARY_MM))
+        return;
+    if (tw_row_has(r, TW_F_INCIDENT_ENERGY_CAL) && tw_row_has(r, TW_F_WORKING_DISTANCE_MM) &&
+        tw_row_has(r, TW_F_DISTANCE_EXPONENT)) {
+        double afb = tw_afb_mm(r->num[TW_F_INCIDENT_ENERGY_CAL], r->num[TW_F_WORKING_DISTANCE_MM],
+                               r->num[TW_F_DISTANCE_EXPONENT]);
+        if (isfinite(afb) && afb > 0) {
+            tw_row_diag(ctx->d, r, TW_WARNING, TW_F_COUNT,
+                        tw_field_display(TW_F_ARC_FLASH_BOUNDARY_MM),
+                        "missing; computed from incident energy with the study's distance "
+                        "exponent, D x (E / 1.2)^(1/x) = %.0f mm; the label says it was computed",
+                        afb);
+            return;
+        }
+    }
+    require(ctx, r, TW_F_ARC_FLASH_BOUNDARY_MM,
+            "the arc-flash boundary in one of these units (it can be computed only when "
+            "incident_energy, working_distance and the study's distance_exponent are given)");
+}
+
 /* What a posting label cannot be made without. */
 static void check_required(const check_ctx *ctx, tw_row *r)
 {
     require(ctx, r, TW_F_EQUIPMENT_ID, "an equipment ID on every row");
     require(ctx, r, TW_F_NOMINAL_VOLTAGE_V, "the nominal voltage in V");
-    require(ctx, r, TW_F_ARC_FLASH_BOUNDARY_MM, "the arc-flash boundary in one of these units");
+    check_boundary_given(ctx, r);
     int energy = given(r, TW_F_INCIDENT_ENERGY_CAL);
     if (!energy && !given(r, TW_F_PPE_CATEGORY))
         tw_row_diag(ctx->d, r, TW_ERROR, TW_F_COUNT, NULL,
