@@ -29,6 +29,7 @@ static const command commands[] = {
     {"diff", cmd_diff, "compare the label content of two study revisions, bus by bus"},
     {"due", cmd_due, "list buses whose 5-year study review is overdue or due soon"},
     {"verify", cmd_verify, "check a scanned label's QR payload against the manifest"},
+    {"permit", cmd_permit, "draft energized electrical work permits (PDF) from a job file"},
     {"help", cmd_help, "list the commands"},
     {"version", cmd_version, "print the version"},
 };
