@@ -169,7 +169,12 @@ static int choose_paths(run_state *R)
                 dir, strerror(errno));
         return TW_EXIT_IO;
     }
-    const char *inputs[] = {a->results, a->job, a->site, a->manifest, NULL};
+    /* The files given, without the options left out (the list ends at the first NULL). */
+    const char *inputs[5] = {NULL};
+    const char *named[] = {a->results, a->job, a->site, a->manifest};
+    for (size_t i = 0, k = 0; i < sizeof named / sizeof named[0]; i++)
+        if (named[i])
+            inputs[k++] = named[i];
     for (size_t i = 0; i < R->jobs.count; i++) {
         draft *dr = &R->drafts[i];
         char *name = tw_permit_file_name(dr->job->work_order, i);

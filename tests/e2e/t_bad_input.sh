@@ -143,6 +143,13 @@ run labels results.csv --out out.pdf --manifest results.csv
 expect_rc 1 "--manifest naming the results CSV is refused (not a manifest)"
 cmp -s results.csv "$BI/good.csv" && ok "the results file is still unchanged" || fail "the results file was changed"
 [ ! -e out.pdf ] && ok "no PDF written when the manifest is refused" || fail "out.pdf written"
+run labels "$TW_DATA/core/small.csv" --out posted.pdf --date 2025-02-28
+cp posted.manifest.json posted.keep
+run permit "$TW_DATA/core/small.csv" --job "$TW_DATA/permit/job.json" \
+    --manifest posted.manifest.json --out posted.manifest.json --date 2025-02-28
+expect_rc 3 "permit --out naming its --manifest (no --site) is refused"
+cmp -s posted.manifest.json posted.keep && ok "the manifest is unchanged" ||
+    fail "the manifest was overwritten by the permit"
 run check no-such-results.csv
 expect_rc 3 "a missing results file is an I/O error"
 contains "$OUT" "no-such-results.csv: error: cannot open for reading" "the message names the file"
