@@ -24,7 +24,11 @@ char *tw_asprintf(const char *fmt, ...)
     ;
 
 /* The same with a va_list (the caller's va_start/va_end). */
-char *tw_vasprintf(const char *fmt, va_list ap);
+char *tw_vasprintf(const char *fmt, va_list ap)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 1, 0)))
+#endif
+    ;
 
 /* Parse all of s (surrounding blanks allowed) as a finite decimal number. 0 on success. */
 int tw_parse_double(const char *s, double *out);
@@ -47,6 +51,12 @@ char *tw_read_file(const char *path, size_t *len, char *err, size_t errlen);
 /* An upper bound on the number of values in JSON text: 1 + the '[', '{' and ',' outside
  * strings. Cheap enough to run before parsing. */
 size_t tw_json_value_bound(const char *data, size_t len);
+
+/* Offset of the first NUL in JSON text - a raw NUL byte, or the backslash of an escaped
+ * \u0000 - or len when there is none. cJSON ends a string at either without saying so, which
+ * would shorten a value silently (an equipment ID "A\u0000B" read as "A"), so readers refuse
+ * such text. */
+size_t tw_json_find_nul(const char *data, size_t len);
 
 /* Case-insensitive ASCII comparison. */
 int tw_strcaseeq(const char *a, const char *b);

@@ -11,6 +11,7 @@
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
+#include <unistd.h>
 
 #include "tw_atomic.h"
 #include "tw_cli.h"
@@ -160,15 +161,30 @@ static size_t derive_all(run_state *R)
 }
 
 /* Where each permit goes; 0, or an exit status after printing why. */
+static int choose_paths_in(run_state *R, const char *dir);
+
 static int choose_paths(run_state *R)
 {
     const permit_args *a = R->a;
     const char *dir = a->out ? a->out : ".";
-    if (R->jobs.batch && mkdir(dir, 0777) != 0 && errno != EEXIST) {
-        fprintf(stderr, "tagwright permit: %s: cannot create the directory for the batch: %s\n",
-                dir, strerror(errno));
-        return TW_EXIT_IO;
+    int made = 0;
+    if (R->jobs.batch) {
+        made = mkdir(dir, 0777) == 0;
+        if (!made && errno != EEXIST) {
+            fprintf(stderr, "tagwright permit: %s: cannot create the directory for the batch: "
+                    "%s\n", dir, strerror(errno));
+            return TW_EXIT_IO;
+        }
     }
+    int rc = choose_paths_in(R, dir);
+    if (rc != TW_EXIT_OK && made)
+        rmdir(dir); /* a refused run leaves nothing behind, not even an empty directory */
+    return rc;
+}
+
+static int choose_paths_in(run_state *R, const char *dir)
+{
+    const permit_args *a = R->a;
     /* The files given, without the options left out (the list ends at the first NULL). */
     const char *inputs[5] = {NULL};
     const char *named[] = {a->results, a->job, a->site, a->manifest};

@@ -476,6 +476,23 @@ static long line_of(const char *data, size_t len, size_t offset)
 
 static cJSON *parse(loader *L, const char *data, size_t len)
 {
+    size_t nul = data ? tw_json_find_nul(data, len) : 0;
+    if (data && nul < len) {
+        tw_source src = {L->file, line_of(data, len, nul), NULL};
+        tw_diag_add(L->d, TW_ERROR, &src, NULL, NULL,
+                    "a NUL character (a NUL byte, or \\u0000) near byte %zu; expected text "
+                    "without NUL, which would cut a value short",
+                    nul);
+        L->errors++;
+        return NULL;
+    }
+    if (data && tw_json_value_bound(data, len) > TW_MAX_JSON_VALUES) {
+        tw_source src = {L->file, 0, NULL};
+        tw_diag_add(L->d, TW_ERROR, &src, NULL, NULL,
+                    "more than %d JSON values; expected at most that", TW_MAX_JSON_VALUES);
+        L->errors++;
+        return NULL;
+    }
     const char *end = NULL;
     cJSON *root = data ? cJSON_ParseWithLengthOpts(data, len, &end, 0) : NULL;
     if (!root) {

@@ -377,6 +377,12 @@ int tw_layout_load_mem(const char *name, const char *data, size_t len, tw_layout
         fail(&r, "$", "more than %d JSON values; expected at most that", TW_MAX_JSON_VALUES);
         return -1;
     }
+    size_t nul = tw_json_find_nul(data, len);
+    if (nul < len) {
+        fail(&r, "$", "a NUL character (a NUL byte, or \\u0000) near byte %zu; expected text "
+             "without NUL, which would cut a value short", nul);
+        return -1;
+    }
     cJSON *root = cJSON_ParseWithLength(data, len);
     if (!root || !cJSON_IsObject(root)) {
         fail(&r, "$", "not a JSON object (check brackets, commas and quotes)");

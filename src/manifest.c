@@ -152,6 +152,11 @@ int tw_manifest_load_mem(const char *name, const char *data, size_t len, tw_mani
         load_error(&c, "$", NULL, "more than 5000000 JSON values; expected at most that");
         return -1;
     }
+    if (tw_json_find_nul(data, len) < len) {
+        load_error(&c, "$", NULL, "a NUL character (a NUL byte, or \\u0000); expected text "
+                   "without NUL, which would cut a value short");
+        return -1;
+    }
     cJSON *root = cJSON_ParseWithLength(data, len);
     if (!root) {
         load_error(&c, "$", NULL, "not valid JSON");

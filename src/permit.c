@@ -962,6 +962,8 @@ char *tw_permit_file_name(const char *work_order, size_t index)
             out = '_';   /* no hidden file, no ".." */
         name[k++] = out;
     }
+    if (k > 0 && name[k - 1] == '.')
+        name[k - 1] = '_';   /* nor ".." where ".pdf" follows */
     name[k] = '\0';
     int useful = 0;
     for (size_t i = 0; i < k; i++)

@@ -254,24 +254,6 @@ static void read_top_level(json_reader *jr, const cJSON *root)
     free_row(&def);
 }
 
-/* cJSON would cut a string at an escaped NUL without saying so; a value must never be
- * shortened silently, so no bus is read from such a file. Returns the offset of the escape,
- * or len. */
-static size_t find_escaped_nul(const char *s, size_t len)
-{
-    for (size_t i = 0; i < len; i++) {
-        if (s[i] != '\\')
-            continue;
-        size_t j = i;
-        while (j < len && s[j] == '\\')
-            j++;
-        if ((j - i) % 2 == 1 && len - j >= 5 && s[j] == 'u' && memcmp(s + j + 1, "0000", 4) == 0)
-            return j - 1;
-        i = j - 1;
-    }
-    return len;
-}
-
 static long line_at(const char *s, size_t off)
 {
     long line = 1;
@@ -328,11 +310,15 @@ int tw_results_read_json(const char *name, const char *data, size_t len, tw_resu
     }
     json_reader jr = {out, d, {0}, 0, 0};
     tw_map_init(&jr.warned);
-    size_t nul = find_escaped_nul(data, len);
+    /* cJSON would cut a string at a NUL without saying so; a value must never be shortened
+     * silently, so no bus is read from such a file. */
+    size_t nul = tw_json_find_nul(data, len);
     if (nul < len)
         text_error(out, d, data, nul,
-                   "expected text without control characters, found an escaped NUL (\\u0000); "
-                   "no bus is read from this file");
+                   data[nul] ? "expected text without control characters, found an escaped NUL "
+                               "(\\u0000); no bus is read from this file"
+                             : "expected text without control characters, found a NUL byte; no "
+                               "bus is read from this file");
     else if (!cJSON_IsObject(root))
         text_error(out, d, data, skip,
                    "expected a JSON object {\"study\": {...}, \"buses\": [...]}, got another "

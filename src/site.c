@@ -468,6 +468,15 @@ int tw_site_load_mem(const char *name, const char *data, size_t len, tw_site *s,
                 TW_MAX_JSON_VALUES);
         return -1;
     }
+    size_t nul = data ? tw_json_find_nul(data, len) : 0;
+    if (data && nul < len) {
+        tw_source src = {L.file, line_of(data, len, nul), NULL};
+        tw_diag_add(d, TW_ERROR, &src, NULL, NULL,
+                    "a NUL character (a NUL byte, or \\u0000) near byte %zu; expected text "
+                    "without NUL, which would cut a value short",
+                    nul);
+        return -1;
+    }
     const char *end = NULL;
     cJSON *root = data ? cJSON_ParseWithLengthOpts(data, len, &end, 0) : NULL;
     if (!root) {

@@ -67,6 +67,7 @@ check_entry() { # check_entry FILE COMMAND EXIT REGEX
     labels)   run labels "$name" --out "$OUTDIR/out.pdf" --date 2025-02-28 ;;
     site)     run check "$BI/good.csv" --site "$name" ;;
     layout)   run labels "$BI/good.csv" --layout "$name" --out "$OUTDIR/out.pdf" --date 2025-02-28 ;;
+    permit)   run permit "$BI/good.csv" --job "$name" --out "$OUTDIR/permit.pdf" --date 2025-02-28 ;;
     manifest) cp "$name" "$MDIR/$name"
               cd "$MDIR"
               run labels "$BI/good.csv" --manifest "$name" --out "$OUTDIR/out.pdf" --date 2025-02-28 ;;

@@ -2,7 +2,9 @@
  * the public entry points, so each stays fixed. Equipment and study names are fictional. */
 #include "tw_test.h"
 
+#include "tw_job.h"
 #include "tw_label.h"
+#include "tw_permit.h"
 #include "tw_results.h"
 #include "tw_scenario.h"
 #include "tw_site.h"
@@ -140,6 +142,44 @@ static void json_with_more_values_than_the_limit_should_not_be_parsed(void **sta
     free(json);
 }
 
+/* A NUL inside a JSON string - a raw byte or \u0000 - made cJSON end the string there: the
+ * equipment ID "BI-PNL-1<NUL>-X" was read as "BI-PNL-1", silently, and labelled. */
+static void json_text_with_a_nul_should_be_refused_by_every_reader(void **state)
+{
+    (void)state;
+    static const char raw[] = "{\"buses\":[{\"equipment_id\":\"BI-PNL-1\0-X\"}]}";
+    static const char esc[] = "{\"site_name\":\"Plant\\u0000 B\"}";
+    static const char job[] = "{\"equipment_id\":\"E-1\",\"work_order\":\"W\0/../x\"}";
+    tw_diags d;
+    tw_diags_init(&d);
+    tw_results r;
+    assert_int_equal(tw_results_read_json("nul.json", raw, sizeof raw - 1, &r, &d), 0);
+    assert_int_equal(r.count, 0);
+    assert_int_equal(d.errors, 1);
+    tw_results_free(&r);
+    tw_site s;
+    assert_int_equal(tw_site_load_mem("site.json", esc, sizeof esc - 1, &s, &d), -1);
+    assert_int_equal(d.errors, 2);
+    tw_site_free(&s);
+    tw_jobs j;
+    assert_int_equal(tw_job_load_mem("job.json", job, sizeof job - 1, &j, &d), TW_JOB_BAD);
+    assert_int_equal(d.errors, 3);
+    tw_jobs_free(&j);
+    assert_int_equal(tw_json_find_nul("\"a\\\\u0000\"", 10), 10); /* "a\\u0000": not a NUL */
+    tw_diags_free(&d);
+}
+
+/* A work order ending in '.' gave "permit-WO..pdf", against tw_permit_file_name's promise of
+ * no "..". Found by the job file fuzzer's oracle. */
+static void permit_file_name_should_have_no_double_dot(void **state)
+{
+    (void)state;
+    char *name = tw_permit_file_name("WO-7.", 0);
+    assert_non_null(name);
+    assert_string_equal(name, "permit-WO-7_.pdf");
+    free(name);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -148,6 +188,8 @@ int main(void)
         cmocka_unit_test(header_with_more_than_4096_columns_should_stop_with_one_error),
         cmocka_unit_test(findings_past_the_limit_should_be_counted_not_kept),
         cmocka_unit_test(json_with_more_values_than_the_limit_should_not_be_parsed),
+        cmocka_unit_test(json_text_with_a_nul_should_be_refused_by_every_reader),
+        cmocka_unit_test(permit_file_name_should_have_no_double_dot),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
