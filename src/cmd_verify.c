@@ -43,13 +43,25 @@ static void chomp(char *s)
         s[--n] = '\0';
 }
 
-static char *read_payload(const char *arg)
+/* The payload; NULL when out of memory or (*too_long set) when the line on stdin does not fit,
+ * which is refused rather than cut short. */
+static char *read_payload(const char *arg, int *too_long)
 {
+    *too_long = 0;
     if (strcmp(arg, "-"))
         return tw_strdup(arg);
     char *buf = malloc(VERIFY_MAX_PAYLOAD + 1);
     if (buf && !fgets(buf, VERIFY_MAX_PAYLOAD + 1, stdin))
         buf[0] = '\0';
+    size_t n = buf ? strlen(buf) : 0;
+    if (n == VERIFY_MAX_PAYLOAD && buf[n - 1] != '\n') {
+        int c = getc(stdin);
+        if (c != EOF && c != '\n') {
+            *too_long = 1;
+            free(buf);
+            return NULL;
+        }
+    }
     return buf;
 }
 
@@ -188,7 +200,12 @@ int cmd_verify(int argc, char **argv)
     if (optind != argc - 1)
         return tw_usage_error("verify", "expected one payload (the text read from the QR code, "
                               "or - for stdin)");
-    char *payload = read_payload(argv[optind]);
+    int too_long;
+    char *payload = read_payload(argv[optind], &too_long);
+    if (too_long)
+        return tw_usage_error("verify", "the payload on stdin is longer than %d bytes; expected "
+                              "the text of one QR code (at most 2953 bytes)",
+                              VERIFY_MAX_PAYLOAD);
     if (!payload) {
         fprintf(stderr, "tagwright verify: out of memory\n");
         return VERIFY_NO_MANIFEST;

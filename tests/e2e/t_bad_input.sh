@@ -151,6 +151,14 @@ run permit "$TW_DATA/core/small.csv" --job "$TW_DATA/permit/job.json" \
 expect_rc 3 "permit --out naming its --manifest (no --site) is refused"
 cmp -s posted.manifest.json posted.keep && ok "the manifest is unchanged" ||
     fail "the manifest was overwritten by the permit"
+payload=$(sed -n 's/.*"payload":[[:space:]]*"\([^"]*\)".*/\1/p' posted.manifest.json | head -n 1)
+{ printf '%s' "$payload"; repeat 9000 x; printf '\n'; } >long-payload.txt
+run verify --manifest posted.manifest.json - <long-payload.txt
+expect_rc 2 "verify: a payload on stdin longer than 8192 bytes is refused, not cut short"
+contains "$ERR" "longer than 8192 bytes" "the message gives the limit"
+printf '%s\n' "$payload" >payload.txt
+run verify --manifest posted.manifest.json - <payload.txt
+expect_rc 0 "verify: the same payload of normal length is current"
 run check no-such-results.csv
 expect_rc 3 "a missing results file is an I/O error"
 contains "$OUT" "no-such-results.csv: error: cannot open for reading" "the message names the file"
