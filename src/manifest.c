@@ -44,8 +44,7 @@ static tw_manifest_entry *entry_new(tw_manifest *m)
     return e;
 }
 
-/* The current index points at entries[].equipment_id, so it is rebuilt whenever the array
- * may have moved. */
+/* Build the current index from the loaded entries. */
 static int reindex(tw_manifest *m)
 {
     tw_map_free(&m->current);
@@ -341,7 +340,11 @@ int tw_manifest_record(tw_manifest *m, const tw_manifest_print *p)
     int revision = has_cur ? m->entries[ci].revision + 1 : 1;
     char *changes = has_cur ? tw_manifest_changes(m->entries[ci].content, p->content) : NULL;
     char *superseded_on = has_cur ? tw_strdup(p->printed) : NULL;
-    if (fill_entry(e, p, revision) != 0 || (has_cur && (!changes || !superseded_on))) {
+    /* The index holds pointers to the equipment ID strings, which never move, and array
+     * positions, so one put keeps it right (rebuilding it per record made printing quadratic).
+     * Put before committing: on failure the manifest is unchanged. */
+    if (fill_entry(e, p, revision) != 0 || (has_cur && (!changes || !superseded_on)) ||
+        tw_map_put(&m->current, e->equipment_id, m->count) != 0) {
         entry_free(e);
         free(changes);
         free(superseded_on);
@@ -354,8 +357,6 @@ int tw_manifest_record(tw_manifest *m, const tw_manifest_print *p)
         free(m->entries[ci].superseded_on);
         m->entries[ci].superseded_on = superseded_on;
     }
-    if (reindex(m) != 0)
-        return -1;
     return revision;
 }
 
