@@ -57,6 +57,10 @@ void tw_diag_add(tw_diags *d, tw_severity sev, const tw_source *src, const char 
 /* Print one finding as "FILE:LINE: error|warning: EQUIPMENT_ID: field: message". */
 void tw_diag_print(const tw_diag *g, FILE *out);
 
+/* Order findings by file and line (stable; findings without a line keep their order and come
+ * first), so a reader meets them in the order of the input. */
+void tw_diags_sort(tw_diags *d);
+
 /* Print every finding in the order added. */
 void tw_diags_print(const tw_diags *d, FILE *out);
 

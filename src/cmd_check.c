@@ -33,6 +33,7 @@ int cmd_check(int argc, char **argv)
         return tw_usage_error("check", "expected one results file (CSV or JSON)");
     tw_study st;
     int rc = tw_study_load(&st, argv[optind], site);
+    tw_diags_sort(&st.diags);
     tw_diags_print(&st.diags, stdout);
     printf("%zu error%s, %zu warning%s", st.diags.errors, st.diags.errors == 1 ? "" : "s",
            st.diags.warnings, st.diags.warnings == 1 ? "" : "s");

@@ -157,6 +157,7 @@ static int run(tw_study *st, const labels_args *a)
     }
     size_t refused = derive_all(st, sel, n, a, labels);
     int layout_bad = load_layout(a, &st->site, &layout, &st->diags) != 0;
+    tw_diags_sort(&st->diags);
     print_findings(&st->diags, sel, n, a->bus_count == 0);
     if (refused || layout_bad || (a->bus_count && n < a->bus_count)) {
         if (refused)

@@ -90,3 +90,37 @@ void tw_diags_print(const tw_diags *d, FILE *out)
     for (size_t i = 0; i < d->count; i++)
         tw_diag_print(&d->items[i], out);
 }
+
+/* qsort is not stable, so ties are broken by the original position. */
+typedef struct {
+    tw_diag g;
+    size_t pos;
+} ranked;
+
+static int by_file_line(const void *a, const void *b)
+{
+    const ranked *x = a, *y = b;
+    int f = strcmp(x->g.file ? x->g.file : "", y->g.file ? y->g.file : "");
+    if (f)
+        return f;
+    if (x->g.line != y->g.line)
+        return x->g.line < y->g.line ? -1 : 1;
+    return x->pos < y->pos ? -1 : x->pos > y->pos;
+}
+
+void tw_diags_sort(tw_diags *d)
+{
+    if (d->count < 2)
+        return;
+    ranked *r = malloc(d->count * sizeof *r);
+    if (!r)
+        return; /* unsorted is still correct, only less convenient */
+    for (size_t i = 0; i < d->count; i++) {
+        r[i].g = d->items[i];
+        r[i].pos = i;
+    }
+    qsort(r, d->count, sizeof *r, by_file_line);
+    for (size_t i = 0; i < d->count; i++)
+        d->items[i] = r[i].g;
+    free(r);
+}

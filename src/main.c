@@ -22,6 +22,9 @@ static int cmd_version(int argc, char **argv);
 static const command commands[] = {
     {"check", cmd_check, "check study results for errors before anything is printed"},
     {"labels", cmd_labels, "print arc-flash hazard labels (PDF) and their manifest"},
+    {"infinite-bus", cmd_infinite_bus, "a transformer's full-load and infinite-bus fault current"},
+    {"envelope", cmd_envelope, "worst case per bus across scenarios; where energy rises"},
+    {"summary", cmd_summary, "a study summary PDF: table, energy chart, scenario sweeps"},
     {"help", cmd_help, "list the commands"},
     {"version", cmd_version, "print the version"},
 };
