@@ -68,18 +68,23 @@ def rows_for(i, rng):
     return out
 
 
+def write(buses, f, seed=8):
+    """Write the results of `buses` buses to the text file f."""
+    rng = random.Random(seed)
+    f.write(HEADER + "\n")
+    for i in range(buses):
+        for line in rows_for(i, rng):
+            f.write(line + "\n")
+
+
 def main():
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("buses", type=int)
     ap.add_argument("out")
     ap.add_argument("--seed", type=int, default=8)
     a = ap.parse_args()
-    rng = random.Random(a.seed)
     with open(a.out, "w", encoding="utf-8", newline="\n") as f:
-        f.write(HEADER + "\n")
-        for i in range(a.buses):
-            for line in rows_for(i, rng):
-                f.write(line + "\n")
+        write(a.buses, f, a.seed)
 
 
 if __name__ == "__main__":

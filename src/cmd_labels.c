@@ -211,6 +211,12 @@ static int run(tw_study *st, const labels_args *a)
         rc = TW_EXIT_DATA;
         goto done;
     }
+    /* The labels hold copies of all they print: the rows can go before the PDFs are drawn,
+     * which keeps the peak memory of a large run down (docs/performance.md). */
+    tw_bus_set_free(&st->buses);
+    tw_results_free(&st->results);
+    free(sel);
+    sel = NULL;
     tw_print_opts po = {a->out, a->manifest, a->date, &layout, &st->site, NULL};
     rc = tw_print_labels_in_volumes(labels, n, &po, a->volume_size, err, sizeof err);
     if (rc != TW_EXIT_OK)
