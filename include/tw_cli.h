@@ -17,6 +17,11 @@ int cmd_labels(int argc, char **argv);
 int cmd_infinite_bus(int argc, char **argv);
 int cmd_envelope(int argc, char **argv);
 int cmd_summary(int argc, char **argv);
+int cmd_reprint(int argc, char **argv);
+int cmd_diff(int argc, char **argv);
+int cmd_due(int argc, char **argv);
+int cmd_verify(int argc, char **argv);
+int cmd_permit(int argc, char **argv);
 
 /* Print "tagwright CMD: message" to stderr and return TW_EXIT_USAGE. */
 int tw_usage_error(const char *cmd, const char *fmt, ...)
