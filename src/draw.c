@@ -91,6 +91,19 @@ static HPDF_Font load_font(tw_pdf_doc *d, const char *file, char *err, size_t er
     return font;
 }
 
+/* libharu embeds the glyphs a document has measured or shown. tw_text_width() measures ASCII
+ * from a cache filled by the first document of the thread, so each document marks every
+ * printable ASCII glyph itself: the glyphs embedded, and so the bytes, never depend on what
+ * an earlier document measured. */
+static void use_printable_ascii(HPDF_Font f)
+{
+    char ascii[96];
+    for (int c = ' '; c <= '~'; c++)
+        ascii[c - ' '] = (char)c;
+    ascii[95] = '\0';
+    HPDF_Font_TextWidth(f, (const HPDF_BYTE *)ascii, 95);
+}
+
 static int set_dates(tw_pdf_doc *d, const char *creation_date, char *err, size_t errlen)
 {
     tw_date day;
@@ -121,6 +134,8 @@ int tw_pdf_doc_open(tw_pdf_doc *d, const char *creation_date, char *err, size_t 
         !(d->regular = load_font(d, TW_FONT_REGULAR, err, errlen)) ||
         !(d->bold = load_font(d, TW_FONT_BOLD, err, errlen)))
         goto fail;
+    use_printable_ascii(d->regular);
+    use_printable_ascii(d->bold);
     if (tw_pdf_doc_check(d, err, errlen) != 0)
         goto fail;
     return 0;
