@@ -51,7 +51,7 @@ static void text_width_should_match_libharu_for_ascii_and_other_text(void **stat
     if (tw_pdf_doc_open(&d, "2026-12-01", err, sizeof err) != 0)
         fail_msg("%s", err);
     const char *texts[] = {"Arc-flash boundary", "4 ft 9 in (1433 mm)", "~!@#$%^&*()_+{}|:<>?",
-                           "Schaltanlage \xC3\x9C" "berwachung", "", "x"};
+                           "Schaltanlage \303\234berwachung", "", "x"};
     HPDF_Font fonts[] = {d.regular, d.bold};
     for (int f = 0; f < 2; f++)
         for (size_t i = 0; i < sizeof texts / sizeof texts[0]; i++) {
