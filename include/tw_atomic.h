@@ -3,10 +3,12 @@
  *
  * A file is written to a temporary file in the target directory, flushed, fsync'd and renamed
  * over the target; the directory is then fsync'd. A failed or interrupted run leaves any earlier
- * output intact. Where the system allows (Linux O_TMPFILE), tw_atomic_open() creates the file
- * without a name, so even SIGKILL leaves nothing behind; otherwise temporary files still open
- * when SIGINT/SIGTERM/SIGHUP arrives are removed. Outputs that belong together (a PDF and its
- * manifest) are prepared first and then committed together with those signals held back.
+ * output intact. Where the system allows (Linux O_TMPFILE), temporary files have no name until
+ * they are published - tw_atomic_open() keeps the descriptor, tw_atomic_tmp_path() hands out
+ * "/proc/self/fd/N" for writers that open a path themselves - so even SIGKILL leaves nothing
+ * behind; otherwise named temporaries still open when SIGINT/SIGTERM/SIGHUP arrives are
+ * removed. Outputs that belong together are written in full first, then published together
+ * with those signals held back.
  */
 #ifndef TW_ATOMIC_H
 #define TW_ATOMIC_H
@@ -34,10 +36,11 @@ int tw_atomic_commit(tw_atomic *a, char *err, size_t errlen);
  * committed. 0, or -1 with a message (a is aborted). */
 int tw_atomic_prepare(tw_atomic *a, char *err, size_t errlen);
 
-/* Replace the targets of n prepared (or still open) files in order, with SIGINT, SIGTERM and
- * SIGHUP held back until all are done, so that a signal cannot replace some and not others.
- * 0, or -1 with a message (the files not yet renamed are removed). */
-int tw_atomic_commit_all(tw_atomic *const *a, size_t n, char *err, size_t errlen);
+/* Hold SIGINT, SIGTERM and SIGHUP back while a set of outputs that belong together (the volumes
+ * of a print run and its manifest) is renamed into place, so that a signal cannot leave some
+ * renamed and others not; release delivers any signal that came meanwhile. Not nested. */
+void tw_atomic_hold_signals(void);
+void tw_atomic_release_signals(void);
 
 /* Close and remove the temporary file. Accepts an unopened or committed struct. */
 void tw_atomic_abort(tw_atomic *a);
@@ -49,8 +52,10 @@ int tw_atomic_write(const char *path, const void *data, size_t len, char *err, s
  * the same fsync discipline; for writers such as libharu that write to a path themselves. */
 int tw_atomic_publish(const char *tmp, const char *target, char *err, size_t errlen);
 
-/* A fresh temporary path beside target ("DIR/.NAME.XXXXXX.tmp", file created empty), registered
- * for removal on signals until published or removed with tw_atomic_forget(). */
+/* A fresh temporary path for target, file created empty: "/proc/self/fd/N" for an unnamed file
+ * in target's directory where possible, else "DIR/.NAME.XXXXXX" registered for removal on
+ * signals. Either way it ends with tw_atomic_publish(), or unlink() and tw_atomic_forget()
+ * (which closes an unnamed one; unlink() of it fails harmlessly). */
 char *tw_atomic_tmp_path(const char *target, char *err, size_t errlen);
 void tw_atomic_forget(const char *tmp);
 

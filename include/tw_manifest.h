@@ -75,7 +75,7 @@ char *tw_manifest_changes(const char *old_content, const char *new_content);
 int tw_manifest_save(tw_manifest *m, char *err, size_t errlen);
 
 /* The same, leaving a prepared for the caller to commit with the PDF it records
- * (tw_atomic_commit_all), or aborted on failure. */
+ * (tw_atomic_commit once every volume is published), or aborted on failure. */
 int tw_manifest_write(tw_manifest *m, tw_atomic *a, char *err, size_t errlen);
 
 /* Release the lock and free everything. Accepts a zeroed manifest. */

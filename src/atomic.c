@@ -13,8 +13,9 @@
 
 #include "tw_util.h"
 
-/* Temporary files to remove if a signal ends the run. A handful at most are open at once. */
-#define TW_MAX_PENDING 16
+/* Temporary files to remove if a signal ends the run: every volume of a print run (at most
+ * 999) is one until the set is published. */
+#define TW_MAX_PENDING 1024
 static char *pending[TW_MAX_PENDING];
 static int handlers_installed;
 
@@ -56,8 +57,15 @@ static void remember(char *tmp)
         }
 }
 
+static int take_owned(const char *tmp);
+
 void tw_atomic_forget(const char *tmp)
 {
+    int ufd = take_owned(tmp);
+    if (ufd >= 0) {
+        close(ufd); /* an unnamed file disappears with its last descriptor */
+        return;
+    }
     for (int i = 0; i < TW_MAX_PENDING; i++)
         if (pending[i] == tmp || (pending[i] && tmp && strcmp(pending[i], tmp) == 0))
             pending[i] = NULL;
@@ -141,69 +149,28 @@ int tw_output_path_ok(const char *path, const char *const *inputs, char *err, si
     return 0;
 }
 
-char *tw_atomic_tmp_path(const char *target, char *err, size_t errlen)
-{
-    char *copy1 = tw_strdup(target), *copy2 = tw_strdup(target);
-    char *tmp = NULL;
-    if (copy1 && copy2)
-        tmp = tw_asprintf("%s/.%s.XXXXXX", dirname(copy1), basename(copy2));
-    free(copy1);
-    free(copy2);
-    if (!tmp) {
-        snprintf(err, errlen, "%s: out of memory", target);
-        return NULL;
-    }
-    int fd = mkstemp(tmp);
-    if (fd < 0) {
-        snprintf(err, errlen, "%s: cannot create a file in its directory: %s", target,
-                 strerror(errno));
-        free(tmp);
-        return NULL;
-    }
-    close(fd);
-    remember(tmp);
-    return tmp;
-}
+/* Descriptors of unnamed temporaries handed out by tw_atomic_tmp_path() as "/proc/self/fd/N",
+ * not yet published or forgotten. */
+static int owned[TW_MAX_PENDING];
+static size_t owned_count;
 
-static int fsync_dir_of(const char *path)
-{
-    char *copy = tw_strdup(path);
-    if (!copy)
-        return -1;
-    int fd = open(dirname(copy), O_RDONLY | O_DIRECTORY);
-    free(copy);
-    if (fd < 0)
-        return -1;
-    int rc = fsync(fd);
-    close(fd);
-    return rc;
-}
+#define PROC_FD "/proc/self/fd/"
 
-int tw_atomic_publish(const char *tmp, const char *target, char *err, size_t errlen)
+/* The descriptor behind an unnamed temporary's path, removed from the owned list; -1 when tmp
+ * is an ordinary named file (or not ours). */
+static int take_owned(const char *tmp)
 {
-    int fd = open(tmp, O_RDONLY);
-    if (fd < 0 || fsync(fd) != 0) {
-        snprintf(err, errlen, "%s: cannot flush to disk: %s", target, strerror(errno));
-        if (fd >= 0)
-            close(fd);
-        unlink(tmp);
-        tw_atomic_forget(tmp);
+    size_t n = strlen(PROC_FD);
+    if (!tmp || strncmp(tmp, PROC_FD, n) != 0)
         return -1;
-    }
-    close(fd);
-    /* mkstemp creates 0600; outputs are ordinary files. */
-    mode_t mask = umask(0);
-    umask(mask);
-    chmod(tmp, 0666 & ~mask);
-    if (rename(tmp, target) != 0) {
-        snprintf(err, errlen, "%s: cannot write: %s", target, strerror(errno));
-        unlink(tmp);
-        tw_atomic_forget(tmp);
-        return -1;
-    }
-    tw_atomic_forget(tmp);
-    fsync_dir_of(target);
-    return 0;
+    char *end;
+    long fd = strtol(tmp + n, &end, 10);
+    for (size_t i = 0; *end == '\0' && i < owned_count; i++)
+        if (owned[i] == fd) {
+            owned[i] = owned[--owned_count];
+            return (int)fd;
+        }
+    return -1;
 }
 
 /* An unnamed file in target's directory (Linux O_TMPFILE): until it is linked in at commit it
@@ -256,6 +223,96 @@ static char *link_unnamed(int fd, const char *target, char *err, size_t errlen)
     else
         remember(name);
     return name;
+}
+
+char *tw_atomic_tmp_path(const char *target, char *err, size_t errlen)
+{
+    /* Unnamed where possible: writers that open a path themselves (libharu) open this one,
+     * and a run killed before the publish leaves nothing behind. */
+    int ufd = owned_count < TW_MAX_PENDING ? open_unnamed(target) : -1;
+    if (ufd >= 0) {
+        char *path = tw_asprintf(PROC_FD "%d", ufd);
+        if (path) {
+            owned[owned_count++] = ufd;
+            return path;
+        }
+        close(ufd);
+    }
+    char *copy1 = tw_strdup(target), *copy2 = tw_strdup(target);
+    char *tmp = NULL;
+    if (copy1 && copy2)
+        tmp = tw_asprintf("%s/.%s.XXXXXX", dirname(copy1), basename(copy2));
+    free(copy1);
+    free(copy2);
+    if (!tmp) {
+        snprintf(err, errlen, "%s: out of memory", target);
+        return NULL;
+    }
+    int fd = mkstemp(tmp);
+    if (fd < 0) {
+        snprintf(err, errlen, "%s: cannot create a file in its directory: %s", target,
+                 strerror(errno));
+        free(tmp);
+        return NULL;
+    }
+    close(fd);
+    remember(tmp);
+    return tmp;
+}
+
+static int fsync_dir_of(const char *path)
+{
+    char *copy = tw_strdup(path);
+    if (!copy)
+        return -1;
+    int fd = open(dirname(copy), O_RDONLY | O_DIRECTORY);
+    free(copy);
+    if (fd < 0)
+        return -1;
+    int rc = fsync(fd);
+    close(fd);
+    return rc;
+}
+
+static char *link_unnamed(int fd, const char *target, char *err, size_t errlen);
+
+int tw_atomic_publish(const char *tmp, const char *target, char *err, size_t errlen)
+{
+    int ufd = take_owned(tmp);
+    if (ufd >= 0) { /* unnamed: give it a name beside the target, then as below */
+        char *name = fsync(ufd) == 0 ? link_unnamed(ufd, target, err, errlen) : NULL;
+        if (!name && !*err)
+            snprintf(err, errlen, "%s: cannot flush to disk: %s", target, strerror(errno));
+        close(ufd);
+        if (!name)
+            return -1;
+        int rc = tw_atomic_publish(name, target, err, errlen);
+        free(name);
+        return rc;
+    }
+    int fd = open(tmp, O_RDONLY);
+    if (fd < 0 || fsync(fd) != 0) {
+        snprintf(err, errlen, "%s: cannot flush to disk: %s", target, strerror(errno));
+        if (fd >= 0)
+            close(fd);
+        unlink(tmp);
+        tw_atomic_forget(tmp);
+        return -1;
+    }
+    close(fd);
+    /* mkstemp creates 0600; outputs are ordinary files. */
+    mode_t mask = umask(0);
+    umask(mask);
+    chmod(tmp, 0666 & ~mask);
+    if (rename(tmp, target) != 0) {
+        snprintf(err, errlen, "%s: cannot write: %s", target, strerror(errno));
+        unlink(tmp);
+        tw_atomic_forget(tmp);
+        return -1;
+    }
+    tw_atomic_forget(tmp);
+    fsync_dir_of(target);
+    return 0;
 }
 
 int tw_atomic_open(tw_atomic *a, const char *target, char *err, size_t errlen)
@@ -325,28 +382,26 @@ int tw_atomic_commit(tw_atomic *a, char *err, size_t errlen)
     return rc;
 }
 
-int tw_atomic_commit_all(tw_atomic *const *a, size_t n, char *err, size_t errlen)
+static sigset_t held_old;
+static int held;
+
+void tw_atomic_hold_signals(void)
 {
-    size_t done = 0;
-    for (size_t i = 0; i < n; i++)
-        if (tw_atomic_prepare(a[i], err, errlen) != 0)
-            goto fail;
-    sigset_t held, old;
-    sigemptyset(&held);
-    sigaddset(&held, SIGINT);
-    sigaddset(&held, SIGTERM);
-    sigaddset(&held, SIGHUP);
-    sigprocmask(SIG_BLOCK, &held, &old);
-    for (; done < n; done++)
-        if (tw_atomic_commit(a[done], err, errlen) != 0)
-            break;
-    sigprocmask(SIG_SETMASK, &old, NULL); /* a signal held back is delivered here */
-    if (done == n)
-        return 0;
-fail:
-    for (size_t i = 0; i < n; i++)
-        tw_atomic_abort(a[i]);
-    return -1;
+    sigset_t set;
+    sigemptyset(&set);
+    sigaddset(&set, SIGINT);
+    sigaddset(&set, SIGTERM);
+    sigaddset(&set, SIGHUP);
+    if (!held && sigprocmask(SIG_BLOCK, &set, &held_old) == 0)
+        held = 1;
+}
+
+void tw_atomic_release_signals(void)
+{
+    if (held) {
+        held = 0;
+        sigprocmask(SIG_SETMASK, &held_old, NULL); /* a signal held back is delivered here */
+    }
 }
 
 void tw_atomic_abort(tw_atomic *a)

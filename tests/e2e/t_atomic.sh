@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # t_atomic.sh - nothing lost: a labels run killed midway (SIGTERM, SIGINT, SIGHUP, SIGKILL; while
-# it computes and while it is writing its output) leaves the earlier PDF and manifest exactly as
-# they were and no partial or temporary file beside them. The large input is generated here;
+# it computes and while it is writing its output, in one PDF or in volumes) leaves the earlier
+# PDF and manifest exactly as they were and no partial or temporary file beside them. The large input is generated here;
 # TW_ATOMIC_BUSES sets its size (default 2000 buses).
 source "$(dirname "$0")/lib.sh"
 
@@ -53,9 +53,10 @@ writing() {
 # the output directory) or after WHEN seconds; sets KILLED=1 when the signal ended the run.
 kill_run() {
     local sig=$1 when=$2 waited=0
+    shift 2 # further arguments go to labels (e.g. --volume-size)
     # job control on, so that the background run does not start with SIGINT ignored
     set -m
-    "${TW_WRAP_CMD[@]}" "$TW_BIN" labels "$TW_TMP/big.csv" --out "$PDF" --date 2025-03-01 \
+    "${TW_WRAP_CMD[@]}" "$TW_BIN" labels "$TW_TMP/big.csv" --out "$PDF" --date 2025-03-01 "$@" \
         >/dev/null 2>"$TW_TMP/kill.err" &
     local pid=$!
     set +m
@@ -78,10 +79,18 @@ kill_run() {
     if [ $rc -gt 128 ]; then KILLED=1; fi
 }
 
-for sig in TERM INT HUP KILL; do
-    for when in 0.3 writing; do
-        what="SIG$sig $([ "$when" = writing ] && echo "while writing" || echo "after ${when}s")"
-        kill_run "$sig" "$when"
+# The last two runs print in volumes of N/4 labels (labels-001.pdf ...): none may appear.
+for run_case in TERM:0.3 TERM:writing INT:0.3 INT:writing HUP:0.3 HUP:writing KILL:0.3 \
+    KILL:writing TERM:writing:volumes KILL:writing:volumes; do
+    IFS=: read -r sig when volumes <<<"$run_case"
+    what="SIG$sig $([ "$when" = writing ] && echo "while writing" || echo "after ${when}s")"
+    extra=()
+    if [ -n "$volumes" ]; then
+        what="$what, in volumes"
+        extra=(--volume-size $((N / 4)))
+    fi
+    {
+        kill_run "$sig" "$when" "${extra[@]}"
         if [ $KILLED -eq 1 ] && [ "$when" = writing ] && [ $WAS_WRITING -eq 0 ]; then
             fail "$what: the run was killed before it opened its output; nothing was tested"
         elif [ $KILLED -eq 1 ]; then
@@ -105,7 +114,7 @@ for sig in TERM INT HUP KILL; do
         fi
         only_outputs && ok "$what: no partial or temporary file left" ||
             fail "$what: files left behind"
-    done
+    }
 done
 if has_tool qpdf; then
     check "the earlier PDF still passes qpdf --check" qpdf --check "$PDF"
