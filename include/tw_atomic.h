@@ -26,6 +26,11 @@ typedef struct {
  * inputs is a NULL-terminated list (may be NULL). 0, or -1 with a message in err. */
 int tw_output_path_ok(const char *path, const char *const *inputs, char *err, size_t errlen);
 
+/* The same for the n files a command was given, any of which may be NULL (an option left out;
+ * a NULL in a NULL-terminated list would hide the files after it). */
+int tw_output_path_ok_n(const char *path, const char *const *inputs, size_t n, char *err,
+                        size_t errlen);
+
 /* Create the temporary file for target. 0, or -1 with a message in err. */
 int tw_atomic_open(tw_atomic *a, const char *target, char *err, size_t errlen);
 

@@ -225,6 +225,22 @@ static char *link_unnamed(int fd, const char *target, char *err, size_t errlen)
     return name;
 }
 
+int tw_output_path_ok_n(const char *path, const char *const *inputs, size_t n, char *err,
+                        size_t errlen)
+{
+    const char **given = calloc(n + 1, sizeof *given);
+    if (!given) {
+        snprintf(err, errlen, "%s: out of memory", path ? path : "output");
+        return -1;
+    }
+    for (size_t i = 0, k = 0; i < n; i++)
+        if (inputs[i])
+            given[k++] = inputs[i];
+    int rc = tw_output_path_ok(path, given, err, errlen);
+    free(given);
+    return rc;
+}
+
 char *tw_atomic_tmp_path(const char *target, char *err, size_t errlen)
 {
     /* Unnamed where possible: writers that open a path themselves (libharu) open this one,

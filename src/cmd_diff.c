@@ -312,8 +312,8 @@ static int print_json(const diff_args *a, const side *o, const side *nw, const c
 static int print_batch(const diff_args *a, side *nw, const side *o, const comparison *c)
 {
     char err[1024] = "";
-    const char *inputs[] = {a->old_path, a->new_path, a->site, a->manifest, NULL};
-    if (tw_output_path_ok(a->out, inputs, err, sizeof err) != 0) {
+    const char *inputs[] = {a->old_path, a->new_path, a->site, a->manifest, a->layout};
+    if (tw_output_path_ok_n(a->out, inputs, 5, err, sizeof err) != 0) {
         fprintf(stderr, "tagwright diff: %s\n", err);
         return TW_EXIT_IO;
     }

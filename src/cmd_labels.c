@@ -156,14 +156,10 @@ static void print_written(const labels_args *a, size_t n)
 static int run(tw_study *st, const labels_args *a)
 {
     char err[1024] = "";
-    /* Every file the run reads or writes besides the PDF (NULLs left out: the list ends at the
-     * first NULL). The layout is a file only when it names one; a shipped name never clashes. */
-    const char *inputs[5] = {NULL};
-    const char *named[] = {a->results, a->site, a->manifest, a->layout};
-    for (size_t i = 0, k = 0; i < sizeof named / sizeof named[0]; i++)
-        if (named[i])
-            inputs[k++] = named[i];
-    if (tw_output_path_ok(a->out, inputs, err, sizeof err) != 0) {
+    /* Every file the run reads or writes besides the PDF. The layout is a file only when it
+     * names one; a shipped name never clashes. */
+    const char *inputs[] = {a->results, a->site, a->manifest, a->layout};
+    if (tw_output_path_ok_n(a->out, inputs, 4, err, sizeof err) != 0) {
         fprintf(stderr, "tagwright labels: %s\n", err);
         return TW_EXIT_IO;
     }

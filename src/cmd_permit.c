@@ -185,12 +185,7 @@ static int choose_paths(run_state *R)
 static int choose_paths_in(run_state *R, const char *dir)
 {
     const permit_args *a = R->a;
-    /* The files given, without the options left out (the list ends at the first NULL). */
-    const char *inputs[5] = {NULL};
-    const char *named[] = {a->results, a->job, a->site, a->manifest};
-    for (size_t i = 0, k = 0; i < sizeof named / sizeof named[0]; i++)
-        if (named[i])
-            inputs[k++] = named[i];
+    const char *inputs[] = {a->results, a->job, a->site, a->manifest};
     for (size_t i = 0; i < R->jobs.count; i++) {
         draft *dr = &R->drafts[i];
         char *name = tw_permit_file_name(dr->job->work_order, i);
@@ -212,7 +207,7 @@ static int choose_paths_in(run_state *R, const char *dir)
                 return TW_EXIT_DATA;
             }
         char err[1024];
-        if (tw_output_path_ok(dr->path, inputs, err, sizeof err) != 0) {
+        if (tw_output_path_ok_n(dr->path, inputs, 4, err, sizeof err) != 0) {
             fprintf(stderr, "tagwright permit: %s\n", err);
             return TW_EXIT_IO;
         }

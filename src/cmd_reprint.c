@@ -414,8 +414,8 @@ static int print_label(tw_study *st, const reprint_args *a, const tw_label *l, c
 static int run(tw_study *st, const reprint_args *a)
 {
     char err[1024] = "";
-    const char *inputs[] = {a->results, a->site, a->manifest, NULL};
-    if (tw_output_path_ok(a->out, inputs, err, sizeof err) != 0) {
+    const char *inputs[] = {a->results, a->site, a->manifest, a->layout};
+    if (tw_output_path_ok_n(a->out, inputs, 4, err, sizeof err) != 0) {
         fprintf(stderr, "tagwright reprint: %s\n", err);
         return TW_EXIT_IO;
     }

@@ -151,6 +151,16 @@ run permit "$TW_DATA/core/small.csv" --job "$TW_DATA/permit/job.json" \
 expect_rc 3 "permit --out naming its --manifest (no --site) is refused"
 cmp -s posted.manifest.json posted.keep && ok "the manifest is unchanged" ||
     fail "the manifest was overwritten by the permit"
+run reprint "$TW_DATA/core/small.csv" --bus E2E-MCC-1 --clearing-time 0.1 --reason test \
+    --manifest posted.manifest.json --out posted.manifest.json --date 2025-03-01
+expect_rc 3 "reprint --out naming its --manifest (no --site) is refused"
+cmp -s posted.manifest.json posted.keep && ok "the manifest is unchanged by reprint" ||
+    fail "the manifest was overwritten by the reprinted PDF"
+run diff "$TW_DATA/core/small.csv" "$TW_DATA/core/small.csv" \
+    --manifest posted.manifest.json --out posted.manifest.json --date 2025-03-01
+expect_rc 3 "diff --out naming its --manifest (no --site) is refused"
+cmp -s posted.manifest.json posted.keep && ok "the manifest is unchanged by diff" ||
+    fail "the manifest was overwritten by diff"
 payload=$(sed -n 's/.*"payload":[[:space:]]*"\([^"]*\)".*/\1/p' posted.manifest.json | head -n 1)
 { printf '%s' "$payload"; repeat 9000 x; printf '\n'; } >long-payload.txt
 run verify --manifest posted.manifest.json - <long-payload.txt
