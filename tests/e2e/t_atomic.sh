@@ -79,21 +79,22 @@ kill_run() {
     if [ $rc -gt 128 ]; then KILLED=1; fi
 }
 
-# int_ignored: SIGINT was ignored when this shell started (a background job, nohup); bash
-# cannot undo that, so neither can the runs it starts - and tagwright keeps it ignored.
-int_ignored() {
-    local mask
+# ignored SIG: SIG was ignored when this shell started (a background job ignores SIGINT, nohup
+# SIGHUP); bash cannot undo that, so neither can the runs it starts - and tagwright keeps it so.
+ignored() {
+    local mask num
+    num=$(kill -l "$1")
     mask=$(awk '/^SigIgn:/ { print $2 }' /proc/$$/status 2>/dev/null)
-    [ -n "$mask" ] && (( (16#$mask >> 1) & 1 ))
+    [ -n "$mask" ] && (( (16#$mask >> (num - 1)) & 1 ))
 }
 
 # The last two runs print in volumes of N/4 labels (labels-001.pdf ...): none may appear.
 for run_case in TERM:0.3 TERM:writing INT:0.3 INT:writing HUP:0.3 HUP:writing KILL:0.3 \
     KILL:writing TERM:writing:volumes KILL:writing:volumes; do
     IFS=: read -r sig when volumes <<<"$run_case"
-    if [ "$sig" = INT ] && int_ignored; then
-        echo "  (SIGINT is ignored in this shell, as in a background job, and so in the runs it"
-        echo "   starts: the SIGINT case after ${when} is skipped)"
+    if ignored "$sig"; then
+        echo "  (SIG$sig is ignored in this shell, as in a background job or under nohup, and so"
+        echo "   in the runs it starts: the SIG$sig case ($when) is skipped)"
         continue
     fi
     what="SIG$sig $([ "$when" = writing ] && echo "while writing" || echo "after ${when}s")"
