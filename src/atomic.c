@@ -290,15 +290,16 @@ static int fsync_dir_of(const char *path)
     return rc;
 }
 
-static char *link_unnamed(int fd, const char *target, char *err, size_t errlen);
-
 int tw_atomic_publish(const char *tmp, const char *target, char *err, size_t errlen)
 {
     int ufd = take_owned(tmp);
     if (ufd >= 0) { /* unnamed: give it a name beside the target, then as below */
-        char *name = fsync(ufd) == 0 ? link_unnamed(ufd, target, err, errlen) : NULL;
-        if (!name && !*err)
+        if (fsync(ufd) != 0) {
             snprintf(err, errlen, "%s: cannot flush to disk: %s", target, strerror(errno));
+            close(ufd);
+            return -1;
+        }
+        char *name = link_unnamed(ufd, target, err, errlen);
         close(ufd);
         if (!name)
             return -1;
