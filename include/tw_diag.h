@@ -57,7 +57,11 @@ void tw_diag_add(tw_diags *d, tw_severity sev, const tw_source *src, const char 
 
 /* The same with a va_list (the caller's va_start/va_end). */
 void tw_diag_vadd(tw_diags *d, tw_severity sev, const tw_source *src, const char *equipment_id,
-                  const char *field, const char *fmt, va_list ap);
+                  const char *field, const char *fmt, va_list ap)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 6, 0)))
+#endif
+    ;
 
 /* Print one finding as "FILE:LINE: error|warning: EQUIPMENT_ID: field: message". */
 void tw_diag_print(const tw_diag *g, FILE *out);

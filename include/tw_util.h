@@ -24,7 +24,11 @@ char *tw_asprintf(const char *fmt, ...)
     ;
 
 /* The same with a va_list (the caller's va_start/va_end). */
-char *tw_vasprintf(const char *fmt, va_list ap);
+char *tw_vasprintf(const char *fmt, va_list ap)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 1, 0)))
+#endif
+    ;
 
 /* Parse all of s (surrounding blanks allowed) as a finite decimal number. 0 on success. */
 int tw_parse_double(const char *s, double *out);
