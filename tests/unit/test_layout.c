@@ -55,11 +55,14 @@ static void shipped_4x6_file_should_equal_the_default(void **state)
     assert_int_equal(d.count, 0);
     assert_int_equal(tw_layout_default(&b), 0);
     assert_string_equal(a.name, b.name);
-    char *na = a.name, *nb = b.name;
-    a.name = b.name = NULL;
+    assert_non_null(a.description); /* the file describes itself; the built-in copy does not */
+    char *na = a.name, *nb = b.name, *da = a.description, *db = b.description;
+    a.name = b.name = a.description = b.description = NULL;
     assert_memory_equal(&a, &b, sizeof a);
     a.name = na;
     b.name = nb;
+    a.description = da;
+    b.description = db;
     tw_layout_free(&a);
     tw_layout_free(&b);
     tw_diags_free(&d);
