@@ -113,9 +113,9 @@ static const char *const messages_es[TW_M_COUNT] = {
     [TW_L_PPE_CATEGORY] = "Categoría de EPP",
     [TW_L_MIN_ARC_RATING] = "Valor mínimo de arco",
     [TW_L_PPE_LEVEL] = "Nivel de EPP de la planta",
-    [TW_L_NO_PPE_ADEQUATE] = "AQUÍ NO SE PERMITE TRABAJAR CON TENSIÓN. Ningún nivel de EPP "
-                             "disponible en esta planta es suficiente. Primero deje el equipo "
-                             "en condición de trabajo eléctricamente segura.",
+    [TW_L_NO_PPE_ADEQUATE] = "PROHIBIDO TRABAJAR CON TENSIÓN AQUÍ. Ningún nivel de EPP de "
+                             "esta planta es suficiente. Primero deje el equipo en condición "
+                             "de trabajo eléctricamente segura.",
     [TW_L_LIMITED_APPROACH] = "Límite de aproximación limitada",
     [TW_L_RESTRICTED_APPROACH] = "Límite de aproximación restringida",
     [TW_L_GLOVE_CLASS] = "Clase de guantes aislantes",

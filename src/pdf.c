@@ -21,7 +21,7 @@
 
 static const char *lang_sep(int id)
 {
-    if (id < TW_L_COUNT || id == TW_M_HAZARD_LINE || id == TW_M_CAUTIONS)
+    if (id == TW_L_NO_PPE_ADEQUATE || id == TW_M_HAZARD_LINE || id == TW_M_CAUTIONS)
         return "\n";
     return TW_MSG_VALUE_SEP;
 }
@@ -241,7 +241,7 @@ static int fit_row(const tw_pdf_doc *d, block *b, row *r, double w, double cap_w
         int side = fit_pair(d, b, r, w, cap_w, s, min, 0);
         double side_h = r->h;
         int side_n = r->n;
-        if (!r->caption || (side == 0 && r->n == 1))
+        if (!r->caption)
             return side;
         /* stacked when lower, or as low with the value on fewer lines (a date or an ID kept
          * whole rather than broken beside a narrow caption) */
@@ -546,7 +546,7 @@ static void plan_arc_flash(const tw_label_doc *doc, plan *pl, block *b, const tw
 static void plan_body(const tw_label_doc *doc, plan *pl, block *b, const tw_label *l)
 {
     row *r = add_row(b, ROW_TEXT, "hazard statement", NULL, T(doc, TW_M_HAZARD_LINE),
-                     2 * doc->nlang);
+                     value_lines(doc, 2));
     if (r) {
         r->bold = 1;
         r->align = TW_ALIGN_CENTRE;
@@ -633,6 +633,14 @@ static int plan_qr(const tw_label_doc *doc, plan *pl, const tw_label *l, const c
     return 0;
 }
 
+/* Height of the QR symbol (or the empty frame) and the hash caption under it, from the top of
+ * the QR box. */
+static double qr_drawn_height(const tw_layout *lay, const plan *pl)
+{
+    double h = pl->qr.dark ? (pl->qr.width + 2 * TW_QR_QUIET_MODULES) * pl->module : lay->qr.w;
+    return h + pl->hash_n * pl->hash_pt * TW_LEADING;
+}
+
 static int plan_label(const tw_label_doc *doc, plan *pl, const tw_label *l, const char *payload,
                       char *err, size_t errlen)
 {
@@ -647,14 +655,21 @@ static int plan_label(const tw_label_doc *doc, plan *pl, const tw_label *l, cons
                  id, lay->min_pt);
         return -1;
     }
+    if (plan_qr(doc, pl, l, payload, id, err, errlen) != 0)
+        return -1;
+    tw_box study = study_box(lay);
+    if (lay->qr_side && study.w > 0) {
+        /* under the QR box: from just below the symbol and its caption as drawn (the symbol
+         * is a whole number of dots per module, often smaller than the box) */
+        double top = lay->qr.y + lay->qr.h - qr_drawn_height(lay, pl) - 4;
+        study.h = fmax(study.h, top - study.y);
+    }
     pl->body.cap_max = 3 * doc->nlang;
     pl->body.study_from = -1;
     plan_body(doc, pl, &pl->body, l);
     pl->body.study_from = pl->body.n;
-    plan_study(doc, pl, &pl->body, l, study_box(lay).w <= 0);
-    if (fit_block(&doc->pdf, &pl->body, lay, study_box(lay), id, err, errlen) != 0)
-        return -1;
-    return plan_qr(doc, pl, l, payload, id, err, errlen);
+    plan_study(doc, pl, &pl->body, l, study.w <= 0);
+    return fit_block(&doc->pdf, &pl->body, lay, study, id, err, errlen);
 }
 
 static void draw_qr_box(HPDF_Page p, const tw_label_doc *doc, const plan *pl)
