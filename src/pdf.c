@@ -194,6 +194,22 @@ static row *add_row(block *b, row_kind kind, const char *what, const char *capti
     return r;
 }
 
+/* Largest size at most start at which the widest word of s fits in w (a word is broken across
+ * lines only when it cannot fit even at min). */
+static double whole_words_pt(HPDF_Font f, const char *s, double w, double start, double min)
+{
+    double widest = 0;
+    for (const char *p = s; *p;) {
+        size_t n = strcspn(p, " \n");
+        widest = fmax(widest, tw_text_width(f, 1, p, n));
+        p += n;
+        p += *p != '\0';
+    }
+    if (widest <= 0 || widest * start <= w)
+        return start;
+    return fmax(min, floor(w / widest * 2) / 2);
+}
+
 /* A caption and its value side by side (stacked 0) or the value under its caption, both the
  * full width (stacked 1): sets the row's lines and height; -1 when it does not fit. */
 static int fit_pair(const tw_pdf_doc *d, block *b, row *r, double w, double cap_w, double s,
@@ -213,7 +229,8 @@ static int fit_pair(const tw_pdf_doc *d, block *b, row *r, double w, double cap_
             return -1;
         }
     }
-    r->pt = tw_fit_size(f, r->text, avail, r->max_lines, fmax(min, s * r->scale), min);
+    double start = whole_words_pt(f, r->text, avail, fmax(min, s * r->scale), min);
+    r->pt = tw_fit_size(f, r->text, avail, r->max_lines, start, min);
     if (r->pt == 0) {
         b->need = tw_text_width(f, min, r->text, strlen(r->text));
         b->have = avail * r->max_lines;
@@ -222,6 +239,18 @@ static int fit_pair(const tw_pdf_doc *d, block *b, row *r, double w, double cap_
     r->n = tw_wrap(f, r->pt, r->text, avail, r->lines, ROW_MAX_LINES);
     double value_h = r->n * r->pt * TW_LEADING, cap_h = r->cap_n * s * TW_LEADING;
     r->h = r->space + (stacked ? cap_h + value_h : fmax(value_h, cap_h));
+    return 0;
+}
+
+/* 1 when the row's text was broken inside a word (a line starts after neither a space nor a
+ * line break). */
+static int breaks_word(const row *r)
+{
+    for (int i = 1; i < r->n && i < ROW_MAX_LINES; i++) {
+        size_t at = r->lines[i].start;
+        if (at > 0 && r->text[at - 1] != ' ' && r->text[at - 1] != '\n')
+            return 1;
+    }
     return 0;
 }
 
@@ -240,19 +269,21 @@ static int fit_row(const tw_pdf_doc *d, block *b, row *r, double w, double cap_w
     if (r->kind == ROW_PAIR) {
         int side = fit_pair(d, b, r, w, cap_w, s, min, 0);
         double side_h = r->h;
-        int side_n = r->n;
+        int side_n = r->n, side_broken = breaks_word(r);
         if (!r->caption)
             return side;
-        /* stacked when lower, or as low with the value on fewer lines (a date or an ID kept
-         * whole rather than broken beside a narrow caption) */
+        /* stacked when lower, or as low with the value on fewer lines, or when only stacking
+         * keeps every word of the value whole (a date or an ID beside a narrow caption) */
         int under = fit_pair(d, b, r, w, cap_w, s, min, 1);
         if (under == 0 && (side != 0 || r->h < side_h - 1e-6 ||
-                           (r->h < side_h + 1e-6 && r->n < side_n)))
+                           (r->h < side_h + 1e-6 && r->n < side_n) ||
+                           (side_broken && !breaks_word(r))))
             return 0;
         return side == 0 ? fit_pair(d, b, r, w, cap_w, s, min, 0) : -1;
     }
     if (r->kind == ROW_BOX)
         avail = w - 1.2 * s;
+    start = whole_words_pt(f, r->text, avail, start, min);
     r->pt = tw_fit_size(f, r->text, avail, r->max_lines, start, min);
     if (r->pt == 0) {
         b->need = tw_text_width(f, min, r->text, strlen(r->text));
