@@ -14,6 +14,14 @@ enum { TW_EXIT_OK = 0, TW_EXIT_DATA = 1, TW_EXIT_USAGE = 2, TW_EXIT_IO = 3 };
 
 int cmd_check(int argc, char **argv);
 int cmd_labels(int argc, char **argv);
+int cmd_infinite_bus(int argc, char **argv);
+int cmd_envelope(int argc, char **argv);
+int cmd_summary(int argc, char **argv);
+int cmd_reprint(int argc, char **argv);
+int cmd_diff(int argc, char **argv);
+int cmd_due(int argc, char **argv);
+int cmd_verify(int argc, char **argv);
+int cmd_permit(int argc, char **argv);
 
 /* Print "tagwright CMD: message" to stderr and return TW_EXIT_USAGE. */
 int tw_usage_error(const char *cmd, const char *fmt, ...)

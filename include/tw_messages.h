@@ -45,6 +45,8 @@ typedef enum {
     TW_M_GLOVE_VALUE,       /* {1} class name, {2} maximum use voltage AC */
     TW_M_AVOID_CONTACT,     /* restricted approach below 151 V */
     TW_M_BOUNDARY_COMPUTED, /* boundary note when the study gave no boundary */
+    TW_M_BOUNDARY_COMPUTED_EXPONENT, /* the same with a default exponent: {1} exponent,
+                                      * {2} its source, {3} equipment type */
     TW_M_COUNT
 } tw_msg_id;
 

@@ -11,6 +11,7 @@
 #include "tw_cli.h"
 #include "tw_date.h"
 #include "tw_atomic.h"
+#include "tw_batch.h"
 #include "tw_label.h"
 #include "tw_layout.h"
 #include "tw_print.h"
@@ -112,32 +113,6 @@ static void print_findings(const tw_diags *d, const tw_bus **sel, size_t n, int 
             tw_diag_print(&d->items[i], stderr);
 }
 
-/* Derive every label; returns how many were refused (errors and not --draft). */
-static size_t derive_all(tw_study *st, const tw_bus **sel, size_t n, const labels_args *a,
-                         tw_label *labels)
-{
-    size_t refused = 0;
-    for (size_t i = 0; i < n; i++) {
-        int bad = tw_label_derive(sel[i], &st->site, a->date, &labels[i], &st->diags) != 0;
-        bad |= tw_bus_errors(sel[i]) > 0;
-        if (bad && a->draft) {
-            labels[i].draft = 1;
-            tw_label_rehash(&labels[i]);
-        } else if (bad) {
-            refused++;
-        }
-    }
-    return refused;
-}
-
-static int load_layout(const labels_args *a, const tw_site *site, tw_layout *l, tw_diags *d)
-{
-    const char *name = a->layout ? a->layout : site->layout;
-    if (!name)
-        return tw_layout_default(l);
-    return tw_layout_load(name, tw_layouts_dir(), l, d);
-}
-
 static int run(tw_study *st, const labels_args *a)
 {
     char err[1024] = "";
@@ -155,8 +130,8 @@ static int run(tw_study *st, const labels_args *a)
         fprintf(stderr, "tagwright labels: out of memory\n");
         goto done;
     }
-    size_t refused = derive_all(st, sel, n, a, labels);
-    int layout_bad = load_layout(a, &st->site, &layout, &st->diags) != 0;
+    size_t refused = tw_batch_derive(sel, n, &st->site, a->date, a->draft, labels, &st->diags);
+    int layout_bad = tw_batch_layout(a->layout, &st->site, &layout, &st->diags) != 0;
     tw_diags_sort(&st->diags);
     print_findings(&st->diags, sel, n, a->bus_count == 0);
     if (refused || layout_bad || (a->bus_count && n < a->bus_count)) {

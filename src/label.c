@@ -15,6 +15,7 @@
 
 #include <openssl/evp.h>
 
+#include "tw_analysis.h"
 #include "tw_date.h"
 #include "tw_messages.h"
 #include "tw_results.h"
@@ -478,6 +479,23 @@ static int usable(const tw_row *r, tw_field f)
     return number_problem(r, f) == NULL;
 }
 
+/* The distance exponent for computing a missing boundary: the study's own column, else the
+ * IEEE 1584-2002 Table 4 value for the equipment type (tw_distance_exponent_for), whose
+ * source the boundary note then names. NAN when neither is usable. */
+static double boundary_exponent(const tw_row *r, const char **default_source)
+{
+    *default_source = NULL;
+    if (tw_row_has(r, TW_F_DISTANCE_EXPONENT) || ((r->invalid >> TW_F_DISTANCE_EXPONENT) & 1u))
+        return usable(r, TW_F_DISTANCE_EXPONENT) ? r->num[TW_F_DISTANCE_EXPONENT] : NAN;
+    if (!tw_row_has(r, TW_F_EQUIPMENT_TYPE) || !usable(r, TW_F_NOMINAL_VOLTAGE_V))
+        return NAN;
+    double x = tw_distance_exponent_for(r->text[TW_F_EQUIPMENT_TYPE],
+                                        r->num[TW_F_NOMINAL_VOLTAGE_V], default_source);
+    if (isnan(x))
+        *default_source = NULL;
+    return x;
+}
+
 /*
  * The arc-flash boundary as the study gives it; when the study left it out, computed from the
  * incident energy where it falls to 1.2 cal/cm2 (NFPA 70E definition of the arc-flash
@@ -486,25 +504,39 @@ static int usable(const tw_row *r, tw_field f)
  * This is exact when the energy falls off as D^-x (IEEE 1584-2002; one voltage range of
  * IEEE 1584-2018) and an estimate otherwise, which is why the study's own boundary always
  * wins and the label says the value was computed. The energy used is the one already rounded
- * up, so the boundary is never smaller than the printed energy implies.
+ * up, so the boundary is never smaller than the printed energy implies. Without the study's
+ * exponent the IEEE 1584-2002 Table 4 default for the equipment type is used and named.
  */
 static void derive_boundary(deriver *D)
 {
     const tw_row *r = D->row;
-    double mm;
+    double mm, x;
+    const char *default_source;
     if (tw_row_has(r, TW_F_ARC_FLASH_BOUNDARY_MM) || ((r->invalid >> TW_F_ARC_FLASH_BOUNDARY_MM) & 1u)) {
         if (need_number(D, TW_F_ARC_FLASH_BOUNDARY_MM, "NFPA 70E 130.5(H)", &mm) != 0)
             return;
     } else if (usable(r, TW_F_INCIDENT_ENERGY_CAL) && usable(r, TW_F_WORKING_DISTANCE_MM) &&
-               usable(r, TW_F_DISTANCE_EXPONENT)) {
+               !isnan(x = boundary_exponent(r, &default_source))) {
         double e = tw_round_energy_up(r->num[TW_F_INCIDENT_ENERGY_CAL]);
-        mm = r->num[TW_F_WORKING_DISTANCE_MM] *
-             pow(e / TW_AFB_ENERGY_CAL_CM2, 1.0 / r->num[TW_F_DISTANCE_EXPONENT]);
-        set_words(D, TW_L_BOUNDARY_NOTE, TW_M_BOUNDARY_COMPUTED, NULL, 0);
+        mm = tw_afb_mm(e, r->num[TW_F_WORKING_DISTANCE_MM], x);
+        if (isnan(mm)) {
+            report(D, TW_ERROR, TW_F_ARC_FLASH_BOUNDARY_MM,
+                   "missing, and the boundary computed from incident energy is not a number");
+            return;
+        }
+        if (default_source) {
+            char xs[32];
+            snprintf(xs, sizeof xs, "%g", x);
+            const char *args[] = {xs, default_source, r->text[TW_F_EQUIPMENT_TYPE]};
+            set_words(D, TW_L_BOUNDARY_NOTE, TW_M_BOUNDARY_COMPUTED_EXPONENT, args, 3);
+        } else {
+            set_words(D, TW_L_BOUNDARY_NOTE, TW_M_BOUNDARY_COMPUTED, NULL, 0);
+        }
     } else {
         report(D, TW_ERROR, TW_F_ARC_FLASH_BOUNDARY_MM,
                "missing, and it cannot be computed without incident energy, working distance "
-               "and distance exponent (NFPA 70E 130.5(H))");
+               "and a distance exponent (the distance_exponent column, or an equipment_type "
+               "with an IEEE 1584-2002 Table 4 exponent) (NFPA 70E 130.5(H))");
         return;
     }
     char buf[96];

@@ -7,10 +7,12 @@
  * means neither present nor invalid. */
 #include "tw_validate.h"
 
+#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
+#include "tw_analysis.h"
 #include "tw_date.h"
 #include "tw_map.h"
 #include "tw_rules.h"
@@ -48,12 +50,37 @@ static void require(const check_ctx *ctx, tw_row *r, tw_field f, const char *why
                     why);
 }
 
+/* A missing arc-flash boundary can be computed, D x (E / 1.2)^(1/x), only when the study gives
+ * its own distance exponent: a default exponent from a table may not match the method the
+ * study used, so without one the boundary stays an error (fail closed). */
+static void check_boundary_given(const check_ctx *ctx, tw_row *r)
+{
+    if (given(r, TW_F_ARC_FLASH_BOUNDARY_MM))
+        return;
+    if (tw_row_has(r, TW_F_INCIDENT_ENERGY_CAL) && tw_row_has(r, TW_F_WORKING_DISTANCE_MM) &&
+        tw_row_has(r, TW_F_DISTANCE_EXPONENT)) {
+        double afb = tw_afb_mm(r->num[TW_F_INCIDENT_ENERGY_CAL], r->num[TW_F_WORKING_DISTANCE_MM],
+                               r->num[TW_F_DISTANCE_EXPONENT]);
+        if (isfinite(afb) && afb > 0) {
+            tw_row_diag(ctx->d, r, TW_WARNING, TW_F_COUNT,
+                        tw_field_display(TW_F_ARC_FLASH_BOUNDARY_MM),
+                        "missing; computed from incident energy with the study's distance "
+                        "exponent, D x (E / 1.2)^(1/x) = %.0f mm; the label says it was computed",
+                        afb);
+            return;
+        }
+    }
+    require(ctx, r, TW_F_ARC_FLASH_BOUNDARY_MM,
+            "the arc-flash boundary in one of these units (it can be computed only when "
+            "incident_energy, working_distance and the study's distance_exponent are given)");
+}
+
 /* What a posting label cannot be made without. */
 static void check_required(const check_ctx *ctx, tw_row *r)
 {
     require(ctx, r, TW_F_EQUIPMENT_ID, "an equipment ID on every row");
     require(ctx, r, TW_F_NOMINAL_VOLTAGE_V, "the nominal voltage in V");
-    require(ctx, r, TW_F_ARC_FLASH_BOUNDARY_MM, "the arc-flash boundary in one of these units");
+    check_boundary_given(ctx, r);
     int energy = given(r, TW_F_INCIDENT_ENERGY_CAL);
     if (!energy && !given(r, TW_F_PPE_CATEGORY))
         tw_row_diag(ctx->d, r, TW_ERROR, TW_F_COUNT, NULL,
@@ -192,6 +219,168 @@ static void check_electrode_config(const check_ctx *ctx, tw_row *r)
                 "expected one of VCB, VCBB, HCB, VOA, HOA (IEEE 1584-2018), got '%s'", s);
 }
 
+/* ---- physics cross-checks (arithmetic in analysis.c, documented in docs/checks.md) ------- */
+
+/* A value the physics checks can use: present, finite, above 0 (anything else is reported by
+ * the checks above, and these checks stay quiet rather than report it twice). */
+static int usable(const tw_row *r, tw_field f)
+{
+    return tw_row_has(r, f) && isfinite(r->num[f]) && r->num[f] > 0;
+}
+
+static const tw_field xfmr_fields[] = {TW_F_XFMR_KVA, TW_F_XFMR_Z_PERCENT, TW_F_XFMR_SECONDARY_V};
+
+/* The three transformer fields come together or not at all. */
+static int xfmr_complete(const check_ctx *ctx, tw_row *r)
+{
+    size_t n = sizeof xfmr_fields / sizeof xfmr_fields[0], have = 0;
+    for (size_t i = 0; i < n; i++)
+        have += given(r, xfmr_fields[i]);
+    if (have == 0)
+        return 0;
+    for (size_t i = 0; have < n && i < n; i++)
+        if (!given(r, xfmr_fields[i]))
+            tw_row_diag(ctx->d, r, TW_WARNING, TW_F_COUNT, tw_field_name(xfmr_fields[i]),
+                        "missing; the infinite-bus check needs xfmr_kva, xfmr_z_percent and "
+                        "xfmr_secondary_v together, so it was not made");
+    if (have < n)
+        return 0;
+    for (size_t i = 0; i < n; i++)
+        if (!usable(r, xfmr_fields[i]))
+            return 0;
+    return 1;
+}
+
+/* The bolted fault current of a bus fed by a transformer cannot exceed the transformer's
+ * infinite-bus current plus the motor contribution; more than TW_INFINITE_BUS_TOLERANCE above
+ * it is a data-entry slip. */
+static void check_infinite_bus(const check_ctx *ctx, tw_row *r)
+{
+    if (!xfmr_complete(ctx, r) || !usable(r, TW_F_BOLTED_FAULT_KA))
+        return;
+    double kva = r->num[TW_F_XFMR_KVA], z = r->num[TW_F_XFMR_Z_PERCENT];
+    double v = r->num[TW_F_XFMR_SECONDARY_V];
+    tw_infinite_bus ib;
+    if (tw_infinite_bus_calc(kva, v, z, &ib) != 0)
+        return;
+    double motor = tw_row_has(r, TW_F_MOTOR_CONTRIBUTION_KA) &&
+                   isfinite(r->num[TW_F_MOTOR_CONTRIBUTION_KA]) &&
+                   r->num[TW_F_MOTOR_CONTRIBUTION_KA] > 0 ? r->num[TW_F_MOTOR_CONTRIBUTION_KA] : 0;
+    double bound = ib.fault_a / 1000 + motor, bolted = r->num[TW_F_BOLTED_FAULT_KA];
+    if (bolted > bound * (1 + TW_INFINITE_BUS_TOLERANCE))
+        tw_row_diag(ctx->d, r, TW_ERROR, TW_F_BOLTED_FAULT_KA, NULL,
+                    "%.2f kA exceeds the most this transformer can deliver, %.2f kA (%g kVA, "
+                    "%g V, %g %%Z: %.1f A full load x 100 / %g = %.2f kA infinite bus, plus "
+                    "%.2f kA motor contribution), by %.0f %%; expected at most %.0f %% above "
+                    "it: check the transformer data and the fault current",
+                    bolted, bound, kva, v, z, ib.full_load_a, z, ib.fault_a / 1000, motor,
+                    (bolted / bound - 1) * 100, TW_INFINITE_BUS_TOLERANCE * 100);
+}
+
+/* The distance exponent for a row: its own column, else the IEEE 1584-2002 default for its
+ * equipment type. NAN when neither is known. */
+static double exponent_of(const tw_row *r, char *why, size_t n)
+{
+    if (tw_row_has(r, TW_F_DISTANCE_EXPONENT)) {
+        snprintf(why, n, "distance_exponent column");
+        return usable(r, TW_F_DISTANCE_EXPONENT) ? r->num[TW_F_DISTANCE_EXPONENT] : NAN;
+    }
+    if (!tw_row_has(r, TW_F_EQUIPMENT_TYPE) || !usable(r, TW_F_NOMINAL_VOLTAGE_V))
+        return NAN;
+    const char *source = "";
+    double x = tw_distance_exponent_for(r->text[TW_F_EQUIPMENT_TYPE],
+                                        r->num[TW_F_NOMINAL_VOLTAGE_V], &source);
+    snprintf(why, n, "%s default for %s; give the study's own distance_exponent if it used "
+             "IEEE 1584-2018", source, r->text[TW_F_EQUIPMENT_TYPE]);
+    return x;
+}
+
+/* The stated arc-flash boundary against D x (E / 1.2)^(1/x). */
+static void check_boundary_consistency(const check_ctx *ctx, tw_row *r)
+{
+    if (!usable(r, TW_F_INCIDENT_ENERGY_CAL) || !usable(r, TW_F_WORKING_DISTANCE_MM) ||
+        !usable(r, TW_F_ARC_FLASH_BOUNDARY_MM))
+        return;
+    char why[256];
+    double x = exponent_of(r, why, sizeof why);
+    double e = r->num[TW_F_INCIDENT_ENERGY_CAL], d = r->num[TW_F_WORKING_DISTANCE_MM];
+    double afb = tw_afb_mm(e, d, x), stated = r->num[TW_F_ARC_FLASH_BOUNDARY_MM];
+    if (isnan(afb) || fabs(stated - afb) <= TW_AFB_TOLERANCE * afb)
+        return;
+    tw_row_diag(ctx->d, r, TW_WARNING, TW_F_ARC_FLASH_BOUNDARY_MM, NULL,
+                "stated %.0f mm, but %g cal/cm2 at %.0f mm with distance exponent %g (%s) puts "
+                "the boundary at %.0f mm (D x (E / 1.2)^(1/x)); %.0f %% %s, expected within "
+                "%.0f %%",
+                stated, e, d, x, why, afb, fabs(stated / afb - 1) * 100,
+                stated < afb ? "closer (the unsafe side)" : "farther",
+                TW_AFB_TOLERANCE * 100);
+}
+
+/* The IEEE 1584-2018 model's range (voltage, bolted fault current, gap, working distance), for
+ * rows that give an incident energy. Outside it is a warning: the study may have used another
+ * method. */
+static void check_ieee1584_range(const check_ctx *ctx, tw_row *r)
+{
+    static const char another[] = "the study may have used another method: confirm it";
+    if (!usable(r, TW_F_INCIDENT_ENERGY_CAL) || !usable(r, TW_F_NOMINAL_VOLTAGE_V))
+        return;
+    double v = r->num[TW_F_NOMINAL_VOLTAGE_V];
+    if (!tw_approach_for_voltage(v))
+        return; /* already an error of voltage-in-tables */
+    const tw_ieee1584_range *rg = tw_ieee1584_range_for(v);
+    if (!rg) {
+        tw_row_diag(ctx->d, r, TW_WARNING, TW_F_NOMINAL_VOLTAGE_V, NULL,
+                    "%g V is outside the IEEE 1584-2018 model (%g V to %g V); %s", v,
+                    TW_IEEE1584_V_MIN, TW_IEEE1584_V_MAX, another);
+        return;
+    }
+    if (usable(r, TW_F_BOLTED_FAULT_KA)) {
+        double ka = r->num[TW_F_BOLTED_FAULT_KA];
+        if (ka < rg->ibf_min_ka || ka > rg->ibf_max_ka)
+            tw_row_diag(ctx->d, r, TW_WARNING, TW_F_BOLTED_FAULT_KA, NULL,
+                        "%g kA is outside the IEEE 1584-2018 model at %g V (%g kA to %g kA); %s",
+                        ka, v, rg->ibf_min_ka, rg->ibf_max_ka, another);
+    }
+    if (usable(r, TW_F_GAP_MM)) {
+        double g = r->num[TW_F_GAP_MM];
+        if (g < rg->gap_min_mm || g > rg->gap_max_mm)
+            tw_row_diag(ctx->d, r, TW_WARNING, TW_F_GAP_MM, NULL,
+                        "%g mm is outside the IEEE 1584-2018 model at %g V (%g mm to %g mm); %s",
+                        g, v, rg->gap_min_mm, rg->gap_max_mm, another);
+    }
+    if (usable(r, TW_F_WORKING_DISTANCE_MM) &&
+        r->num[TW_F_WORKING_DISTANCE_MM] < TW_IEEE1584_MIN_WD_MM)
+        tw_row_diag(ctx->d, r, TW_WARNING, TW_F_WORKING_DISTANCE_MM, NULL,
+                    "%.0f mm is shorter than the IEEE 1584-2018 model covers (%g mm, 12 in); %s",
+                    r->num[TW_F_WORKING_DISTANCE_MM], TW_IEEE1584_MIN_WD_MM, another);
+}
+
+/* An arc adds impedance, so the arcing current is below the bolted fault current. A warning,
+ * not an error: the IEEE 1584-2002 equation above 1 kV gives an arcing current slightly above
+ * the bolted current for bolted currents below about 1.7 kA (docs/checks.md). */
+static void check_arcing_below_bolted(const check_ctx *ctx, tw_row *r)
+{
+    if (!usable(r, TW_F_ARCING_CURRENT_KA) || !usable(r, TW_F_BOLTED_FAULT_KA))
+        return;
+    double ia = r->num[TW_F_ARCING_CURRENT_KA], ibf = r->num[TW_F_BOLTED_FAULT_KA];
+    if (ia >= ibf)
+        tw_row_diag(ctx->d, r, TW_WARNING, TW_F_ARCING_CURRENT_KA, NULL,
+                    "%g kA is not below the bolted fault current %g kA; expected lower, since "
+                    "the arc adds impedance (check for swapped columns, or confirm the study's "
+                    "method)", ia, ibf);
+}
+
+/* Common practice caps the arc duration at 2 s (an IEEE 1584 note). */
+static void check_clearing_time(const check_ctx *ctx, tw_row *r)
+{
+    if (usable(r, TW_F_CLEARING_TIME_S) && r->num[TW_F_CLEARING_TIME_S] > TW_MAX_CLEARING_S)
+        tw_row_diag(ctx->d, r, TW_WARNING, TW_F_CLEARING_TIME_S, NULL,
+                    "%g s is above %g s; common practice (an IEEE 1584 note) caps the arc "
+                    "duration at %g s, since a person would most likely move away from the "
+                    "arc: confirm the study's assumption", r->num[TW_F_CLEARING_TIME_S],
+                    TW_MAX_CLEARING_S, TW_MAX_CLEARING_S);
+}
+
 /* ---- buses ----------------------------------------------------------------------------- */
 
 /* "line 12" or "buses[3]", for naming another row in a message. */
@@ -270,6 +459,11 @@ static const tw_check checks[] = {
     {"voltage-in-tables", check_voltage_tables, NULL},
     {"service-equipment-label", check_service_equipment, NULL},
     {"electrode-config", check_electrode_config, NULL},
+    {"infinite-bus-bound", check_infinite_bus, NULL},
+    {"boundary-consistency", check_boundary_consistency, NULL},
+    {"ieee1584-range", check_ieee1584_range, NULL},
+    {"arcing-below-bolted", check_arcing_below_bolted, NULL},
+    {"clearing-time-2s", check_clearing_time, NULL},
     {"one-row-per-scenario", NULL, check_duplicate_ids},
     {"voltage-across-scenarios", NULL, check_voltage_agreement},
 };
