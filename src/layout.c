@@ -429,21 +429,22 @@ static void place_regions(reader *r, tw_layout *l, double m, double hh, double q
         l->study = (tw_box){m, l->qr.y, l->qr.x - TW_STUDY_GAP_PT - m, qh};
         need_h = 2 * m + hh + qh + fh + 3 * g + min_body_h;
         body_w = inner_w;
-        if (l->study.w < TW_MIN_STRIP_PT && inner_w > 0) {
-            fail(r, "$.qr.size",
-                 "the qr region leaves %.1f pt for the study block beside it, %.1f pt (%.1f mm) "
-                 "less than the 1 in it needs",
-                 l->study.w, TW_MIN_STRIP_PT - l->study.w, MM(TW_MIN_STRIP_PT - l->study.w));
-            return;
-        }
     }
-    if (need_h > l->label_h + 1e-6) {
+    int short_h = need_h > l->label_h + 1e-6;
+    if (short_h)
         fail(r, "$.label.height",
              "the regions do not fit: margins, header, QR box, footer and at least %d body "
              "lines need %.1f pt (%.1f mm) of height, the label has %.1f pt: %.1f mm short",
              TW_MIN_BODY_LINES, need_h, MM(need_h), l->label_h, MM(need_h - l->label_h));
+    if (!l->qr_side && l->study.w < TW_MIN_STRIP_PT && inner_w > 0) {
+        fail(r, "$.qr.size",
+             "the qr region leaves %.1f pt for the study block beside it, %.1f pt (%.1f mm) "
+             "less than the 1 in it needs",
+             l->study.w, TW_MIN_STRIP_PT - l->study.w, MM(TW_MIN_STRIP_PT - l->study.w));
         return;
     }
+    if (short_h)
+        return;
     double col_w = (body_w - (cols - 1) * TW_COLUMN_GAP_EM * l->body_pt) / cols;
     if (col_w < TW_MIN_STRIP_PT) {
         fail(r, cols > 1 ? "$.body.columns" : "$.label.width",
