@@ -27,7 +27,7 @@ static void size_text(double w, double h, int metric, int digits, char *buf, siz
 
 static void print_heading(void)
 {
-    printf("  %-22s %-30s %-15s %-14s %s\n", "NAME", "LABEL", "PAGE", "LABELS/PAGE", "PRINTER");
+    printf("  %-22s %-33s %-15s %-14s %s\n", "NAME", "LABEL", "PAGE", "LABELS/PAGE", "PRINTER");
 }
 
 static void print_layout(const tw_layout *l)
@@ -38,7 +38,7 @@ static void print_layout(const tw_layout *l)
     snprintf(label, sizeof label, "%s (%s)", own, other);
     size_text(l->page_w, l->page_h, l->metric, 4, page, sizeof page);
     snprintf(grid, sizeof grid, "%d (%d x %d)", l->columns * l->rows, l->columns, l->rows);
-    printf("  %-22s %-30s %-15s %-14s %.0f dpi\n", l->name, label, page, grid, l->printer_dpi);
+    printf("  %-22s %-33s %-15s %-14s %.0f dpi\n", l->name, label, page, grid, l->printer_dpi);
     if (l->description)
         printf("  %-22s %s\n", "", l->description);
 }

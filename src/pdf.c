@@ -164,6 +164,7 @@ typedef struct {
     int cap_max;         /* lines a caption may take */
     int study_from;      /* first row of the study block, or -1 */
     int study_region;    /* 1: the last region is the study box, where study rows start */
+    int study_gap;       /* 1: space between body rows and study rows in the same region */
     tw_box regions[BLOCK_MAX_REGIONS];
     int nregions;
     /* set by fitting */
@@ -328,6 +329,8 @@ static int fit_block_at(const tw_pdf_doc *d, block *b, double s, double min)
             reg = b->nregions - 1;
             used = 0;
         }
+        if (i == b->study_from)
+            r->pre = used > 0 && b->study_gap ? 0.6 : 0; /* set off from the body rows above */
         for (;;) {
             tw_box box = b->regions[reg];
             double cap_w = fmin(cw, box.w * CAPTION_SHARE);
@@ -384,12 +387,21 @@ static int fit_block(const tw_pdf_doc *d, block *b, const tw_layout *lay, tw_box
     if (max_cols > BLOCK_MAX_REGIONS - 1)
         max_cols = BLOCK_MAX_REGIONS - 1;
     double min = lay->min_pt;
-    for (int c = 1; c <= max_cols; c++)
-        for (double s = lay->body_pt; s >= min - 1e-9; s -= 0.5) {
-            set_regions(b, lay, study, c, s);
-            if (fit_block_at(d, b, s, min) == 0)
-                return 0;
-        }
+    for (int c = 1; c <= max_cols; c++) {
+        /* the tightest setting first: when even that fails, no larger size will fit */
+        b->study_gap = 0;
+        set_regions(b, lay, study, c, min);
+        if (fit_block_at(d, b, min, min) != 0)
+            continue;
+        for (b->study_gap = 1; b->study_gap >= 0; b->study_gap--) /* the gap goes first */
+            for (double s = lay->body_pt;; s = fmax(min, s - 0.5)) {
+                set_regions(b, lay, study, c, s);
+                if (fit_block_at(d, b, s, min) == 0)
+                    return 0;
+                if (s <= min)
+                    break;
+            }
+    }
     if (b->failed && b->failed - b->rows >= b->study_from && b->study_from >= 0)
         region = lay->qr_side ? "body" : "study";
     if (b->failed && b->caption_failed)
@@ -602,19 +614,17 @@ static void plan_body(const tw_label_doc *doc, plan *pl, block *b, const tw_labe
     }
 }
 
-/* The study block: beside the QR box, or (QR at the side) after the body, set off by a gap. */
-static void plan_study(const tw_label_doc *doc, plan *pl, block *b, const tw_label *l,
-                       int after_body)
+/* The study block: it starts in the study box (beside or under the QR box), or follows the
+ * body set off by a gap (the flow decides, see fit_block_at). */
+static void plan_study(const tw_label_doc *doc, plan *pl, block *b, const tw_label *l)
 {
-    int first = b->n;
     add_pair(doc, pl, b, l, TW_L_STUDY_ID, 2);
     add_pair(doc, pl, b, l, TW_L_STUDY_DATE, 1);
     add_pair(doc, pl, b, l, TW_L_SCENARIO, 2);
     add_pair(doc, pl, b, l, TW_L_REVIEW_DUE, 1);
-    if (has(l, TW_L_REVISION_NOTE))
-        add_row(b, ROW_TEXT, "revision_note", NULL, l->value[TW_L_REVISION_NOTE], 3);
-    if (after_body && b->n > first)
-        b->rows[first].pre = 0.6;
+    const char *note = shown(doc, pl, l, TW_L_REVISION_NOTE);
+    if (note)
+        add_row(b, ROW_TEXT, "revision_note", NULL, note, 3);
 }
 
 /* Where the study block starts: the layout's study box; for a layout built by hand without
@@ -699,7 +709,7 @@ static int plan_label(const tw_label_doc *doc, plan *pl, const tw_label *l, cons
     pl->body.study_from = -1;
     plan_body(doc, pl, &pl->body, l);
     pl->body.study_from = pl->body.n;
-    plan_study(doc, pl, &pl->body, l, study.w <= 0);
+    plan_study(doc, pl, &pl->body, l);
     return fit_block(&doc->pdf, &pl->body, lay, study, id, err, errlen);
 }
 
