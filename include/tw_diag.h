@@ -12,6 +12,7 @@
 #ifndef TW_DIAG_H
 #define TW_DIAG_H
 
+#include <stdarg.h>
 #include <stddef.h>
 #include <stdio.h>
 
@@ -53,6 +54,10 @@ void tw_diag_add(tw_diags *d, tw_severity sev, const tw_source *src, const char 
     __attribute__((format(printf, 6, 7)))
 #endif
     ;
+
+/* The same with a va_list (the caller's va_start/va_end). */
+void tw_diag_vadd(tw_diags *d, tw_severity sev, const tw_source *src, const char *equipment_id,
+                  const char *field, const char *fmt, va_list ap);
 
 /* Print one finding as "FILE:LINE: error|warning: EQUIPMENT_ID: field: message". */
 void tw_diag_print(const tw_diag *g, FILE *out);

@@ -7,6 +7,7 @@
 #ifndef TW_UTIL_H
 #define TW_UTIL_H
 
+#include <stdarg.h>
 #include <stddef.h>
 
 /* Copy of s (NULL gives NULL). */
@@ -21,6 +22,9 @@ char *tw_asprintf(const char *fmt, ...)
     __attribute__((format(printf, 1, 2)))
 #endif
     ;
+
+/* The same with a va_list (the caller's va_start/va_end). */
+char *tw_vasprintf(const char *fmt, va_list ap);
 
 /* Parse all of s (surrounding blanks allowed) as a finite decimal number. 0 on success. */
 int tw_parse_double(const char *s, double *out);

@@ -41,8 +41,8 @@ static tw_diag *diag_slot(tw_diags *d)
     return g;
 }
 
-void tw_diag_add(tw_diags *d, tw_severity sev, const tw_source *src, const char *equipment_id,
-                 const char *field, const char *fmt, ...)
+void tw_diag_vadd(tw_diags *d, tw_severity sev, const tw_source *src, const char *equipment_id,
+                  const char *field, const char *fmt, va_list ap)
 {
     if (sev == TW_ERROR)
         d->errors++;
@@ -59,15 +59,16 @@ void tw_diag_add(tw_diags *d, tw_severity sev, const tw_source *src, const char 
     }
     g->equipment_id = tw_strdup(equipment_id);
     g->field = tw_strdup(field);
+    g->message = tw_vasprintf(fmt, ap);
+}
+
+void tw_diag_add(tw_diags *d, tw_severity sev, const tw_source *src, const char *equipment_id,
+                 const char *field, const char *fmt, ...)
+{
     va_list ap;
     va_start(ap, fmt);
-    int n = vsnprintf(NULL, 0, fmt, ap);
+    tw_diag_vadd(d, sev, src, equipment_id, field, fmt, ap);
     va_end(ap);
-    if (n >= 0 && (g->message = malloc((size_t)n + 1)) != NULL) {
-        va_start(ap, fmt);
-        vsnprintf(g->message, (size_t)n + 1, fmt, ap);
-        va_end(ap);
-    }
 }
 
 void tw_diag_print(const tw_diag *g, FILE *out)

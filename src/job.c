@@ -82,15 +82,13 @@ static void finding(loader *L, tw_severity sev, const char *path, const char *fi
 static void finding(loader *L, tw_severity sev, const char *path, const char *field,
                     const char *fmt, ...)
 {
-    char msg[512];
-    va_list ap;
-    va_start(ap, fmt);
-    vsnprintf(msg, sizeof msg, fmt, ap);
-    va_end(ap);
     if (sev == TW_ERROR)
         L->errors++;
     tw_source src = {L->file, 0, path && *path ? path : NULL};
-    tw_diag_add(L->d, sev, &src, L->equipment_id, field, "%s", msg);
+    va_list ap;
+    va_start(ap, fmt);
+    tw_diag_vadd(L->d, sev, &src, L->equipment_id, field, fmt, ap);
+    va_end(ap);
 }
 
 /* "base.key" or "key" (base empty); "base[i]". Fresh strings; NULL when out of memory. */

@@ -193,14 +193,8 @@ static const char *ownf(plan *P, const char *fmt, ...)
 {
     va_list ap;
     va_start(ap, fmt);
-    int n = vsnprintf(NULL, 0, fmt, ap);
+    char *s = tw_vasprintf(fmt, ap);
     va_end(ap);
-    char *s = n >= 0 ? malloc((size_t)n + 1) : NULL;
-    if (s) {
-        va_start(ap, fmt);
-        vsnprintf(s, (size_t)n + 1, fmt, ap);
-        va_end(ap);
-    }
     return own(P, s);
 }
 

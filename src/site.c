@@ -141,15 +141,13 @@ static void finding(loader *L, tw_severity sev, const char *path, const char *fi
 static void finding(loader *L, tw_severity sev, const char *path, const char *field,
                     const char *fmt, ...)
 {
-    char msg[512];
-    va_list ap;
-    va_start(ap, fmt);
-    vsnprintf(msg, sizeof msg, fmt, ap);
-    va_end(ap);
     if (sev == TW_ERROR)
         L->errors++;
     tw_source src = {L->file, 0, path};
-    tw_diag_add(L->d, sev, &src, NULL, field, "%s", msg);
+    va_list ap;
+    va_start(ap, fmt);
+    tw_diag_vadd(L->d, sev, &src, NULL, field, fmt, ap);
+    va_end(ap);
 }
 
 static void oom(loader *L, const char *path, const char *field)

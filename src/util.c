@@ -25,19 +25,23 @@ char *tw_strndup(const char *s, size_t n)
     return p;
 }
 
+char *tw_vasprintf(const char *fmt, va_list ap)
+{
+    va_list again;
+    va_copy(again, ap);
+    int n = vsnprintf(NULL, 0, fmt, ap);
+    char *p = n >= 0 ? malloc((size_t)n + 1) : NULL;
+    if (p)
+        vsnprintf(p, (size_t)n + 1, fmt, again);
+    va_end(again);
+    return p;
+}
+
 char *tw_asprintf(const char *fmt, ...)
 {
     va_list ap;
     va_start(ap, fmt);
-    int n = vsnprintf(NULL, 0, fmt, ap);
-    va_end(ap);
-    if (n < 0)
-        return NULL;
-    char *p = malloc((size_t)n + 1);
-    if (!p)
-        return NULL;
-    va_start(ap, fmt);
-    vsnprintf(p, (size_t)n + 1, fmt, ap);
+    char *p = tw_vasprintf(fmt, ap);
     va_end(ap);
     return p;
 }
