@@ -97,8 +97,8 @@ static const char *const messages_en[TW_M_COUNT] = {
     [TW_M_GLOVE_VALUE] = "Class {1} (max. use {2} V AC)",
     [TW_M_AVOID_CONTACT] = "avoid contact",
     [TW_M_BOUNDARY_COMPUTED] = "computed from incident energy",
-    [TW_M_BOUNDARY_COMPUTED_EXPONENT] = "computed from incident energy, distance exponent {1} "
-                                        "({2}, {3})",
+    [TW_M_BOUNDARY_COMPUTED_EXPONENT] = ("computed from incident energy, distance exponent "
+                                         "{1} ({2}, {3})"),
 };
 
 /* Spanish: ADVERTENCIA / PELIGRO are the usual signal words of bilingual signs in the ANSI
@@ -151,8 +151,8 @@ static const char *const messages_es[TW_M_COUNT] = {
     [TW_M_GLOVE_VALUE] = "Clase {1} (uso máx. {2} V CA)",
     [TW_M_AVOID_CONTACT] = "evitar el contacto",
     [TW_M_BOUNDARY_COMPUTED] = "calculado a partir de la energía incidente",
-    [TW_M_BOUNDARY_COMPUTED_EXPONENT] = "calculado a partir de la energía incidente, exponente "
-                                        "de distancia {1} ({2}, {3})",
+    [TW_M_BOUNDARY_COMPUTED_EXPONENT] = ("calculado a partir de la energía incidente, "
+                                         "exponente de distancia {1} ({2}, {3})"),
 };
 
 static const char *const *const tables[TW_LANG_COUNT] = {
