@@ -4,6 +4,7 @@
 #include "tw_layout.h"
 #include "tw_label.h"
 #include "tw_qr.h"
+#include "tw_util.h"
 
 static int box_inside(tw_box b, const tw_layout *l)
 {
@@ -409,6 +410,52 @@ static void sheet_without_margins_should_be_centred_and_warn_near_the_edge(void 
     tw_diags_free(&d);
 }
 
+/* Every truncation and many single-byte changes of a shipped layout load or are refused with
+ * findings; none crashes (run under ASan/UBSan by make check). */
+static void truncated_or_garbled_layouts_should_be_refused_not_crash(void **state)
+{
+    (void)state;
+    const char *src = getenv("TW_SOURCE_DIR");
+    const char *names[] = {"105x74mm", "letter-3.75x3.25-2x3"};
+    static const char junk[] = {'}', '{', '"', '-', '0', '9', 'e', ',', ':', '[', '\0', 'x'};
+    for (size_t f = 0; f < sizeof names / sizeof names[0]; f++) {
+        char path[4096], err[256];
+        snprintf(path, sizeof path, "%s/layouts/%s.json", src ? src : ".", names[f]);
+        size_t len = 0;
+        char *text = tw_read_file(path, &len, err, sizeof err);
+        if (!text)
+            fail_msg("%s", err);
+        char *copy = malloc(len + 1);
+        assert_non_null(copy);
+        for (size_t cut = 0; cut <= len; cut++) {
+            for (size_t j = 0; j < (cut < len ? sizeof junk : 1); j++) {
+                memcpy(copy, text, len);
+                size_t n = len;
+                if (cut < len)
+                    copy[cut] = junk[j]; /* one byte changed */
+                else
+                    n = cut;
+                tw_diags d;
+                tw_diags_init(&d);
+                tw_layout l;
+                int rc = tw_layout_load_mem("fuzz.json", copy, n, &l, &d);
+                assert_true(rc == 0 || d.errors > 0);
+                tw_layout_free(&l);
+                tw_diags_free(&d);
+            }
+            tw_diags d;
+            tw_diags_init(&d);
+            tw_layout l;
+            int rc = tw_layout_load_mem("fuzz.json", text, cut, &l, &d); /* truncated */
+            assert_true(rc == 0 || d.errors > 0);
+            tw_layout_free(&l);
+            tw_diags_free(&d);
+        }
+        free(copy);
+        free(text);
+    }
+}
+
 static void load_should_name_the_file_when_a_layout_is_missing(void **state)
 {
     (void)state;
@@ -452,6 +499,7 @@ int main(void)
         cmocka_unit_test(side_qr_should_sit_under_the_header_with_the_study_block_below),
         cmocka_unit_test(body_columns_qr_position_and_omit_should_be_checked),
         cmocka_unit_test(sheet_without_margins_should_be_centred_and_warn_near_the_edge),
+        cmocka_unit_test(truncated_or_garbled_layouts_should_be_refused_not_crash),
         cmocka_unit_test(load_should_name_the_file_when_a_layout_is_missing),
         cmocka_unit_test(layouts_dir_should_follow_the_environment),
     };
