@@ -82,3 +82,9 @@ install: $(BIN)
 
 clean:
 	rm -rf build build-asan build-fuzz out
+
+# Synthetic studies of 1,000, 10,000 and 100,000 buses: labels/s, wall and CPU time, peak
+# memory, and the growth exponent (bench/run.py; docs/performance.md). BENCH_ARGS adds options,
+# e.g. BENCH_ARGS="--sizes 1000,10000 --repeat 3".
+bench: $(BIN)
+	python3 bench/run.py --bin $(BIN) $(BENCH_ARGS)

@@ -26,6 +26,7 @@ typedef struct {
     HPDF_Doc pdf;
     HPDF_Font regular, bold;
     unsigned long error, detail; /* first libharu error and its detail, 0 when none */
+    int saved;                   /* written at least once (see tw_pdf_doc_close) */
 } tw_pdf_doc;
 
 /* Open a document. creation_date "YYYY-MM-DD" becomes the creation and modification dates
@@ -38,6 +39,12 @@ int tw_pdf_doc_check(const tw_pdf_doc *d, char *err, size_t errlen);
 /* Write the document atomically to path (temporary file beside it, then rename). 0, or -1
  * with a message in err; on failure no file is left behind and an earlier path is intact. */
 int tw_pdf_doc_save(tw_pdf_doc *d, const char *path, char *err, size_t errlen);
+
+/* Write the document to path as it is, not atomically: for outputs published together later
+ * with tw_atomic_publish(), such as the volumes of one print run. Messages name target.
+ * 0, or -1 with a message in err. */
+int tw_pdf_doc_write(tw_pdf_doc *d, const char *path, const char *target, char *err,
+                     size_t errlen);
 
 /* Free the document; accepts NULL and a zeroed or closed struct. */
 void tw_pdf_doc_close(tw_pdf_doc *d);

@@ -17,6 +17,7 @@
 
 #include "tw_label.h"
 #include "tw_layout.h"
+#include "tw_qr.h"
 #include "tw_site.h"
 
 typedef struct tw_label_doc tw_label_doc;
@@ -31,11 +32,23 @@ tw_label_doc *tw_label_doc_new(const tw_layout *layout, const tw_site *site,
 int tw_label_doc_add(tw_label_doc *doc, const tw_label *label, const char *qr_payload,
                      char *err, size_t errlen);
 
+/* The same with the QR code already encoded from qr_payload by tw_qr_encode() (for instance on
+ * another thread while earlier labels are drawn). qr stays the caller's; NULL, or one that
+ * failed to encode, means encode here. */
+int tw_label_doc_add_encoded(tw_label_doc *doc, const tw_label *label, const char *qr_payload,
+                             const tw_qr *qr, char *err, size_t errlen);
+
 /* Number of labels added so far. */
 int tw_label_doc_count(const tw_label_doc *doc);
 
 /* Write the PDF atomically to path. 0, or -1 with a message in err. */
 int tw_label_doc_save(tw_label_doc *doc, const char *path, char *err, size_t errlen);
+
+/* Write the PDF to path as it is, not atomically: one volume of a set that the caller
+ * publishes together (tw_atomic_publish) once every volume is written. Messages name target.
+ * 0, or -1 with a message in err. */
+int tw_label_doc_write(tw_label_doc *doc, const char *path, const char *target, char *err,
+                       size_t errlen);
 
 void tw_label_doc_free(tw_label_doc *doc);
 

@@ -5,6 +5,14 @@
  * Drafts (label->draft) are drawn watermarked and are never recorded in the manifest: they are
  * not for posting. The PDF is written before the manifest; if the PDF cannot be written the
  * manifest is left as it was.
+ *
+ * Volumes: libharu holds a whole document in memory until it is written, so a large batch is
+ * split into volumes of TW_DEFAULT_VOLUME_SIZE labels (or as many as the caller asks): "NAME.pdf" becomes
+ * "NAME-001.pdf", "NAME-002.pdf", ... (a batch that fits one volume keeps "NAME.pdf"). The
+ * manifest records each label's file, volume and page. Every volume is written to a temporary
+ * file first; only when all are written are they renamed into place, in order, so a failed run
+ * leaves no volume behind (a rename failing part-way, which only a failing disk does, leaves the
+ * volumes before it in place). Volumes left by an earlier, larger run are not removed.
  */
 #ifndef TW_PRINT_H
 #define TW_PRINT_H
@@ -25,9 +33,26 @@ typedef struct {
     const char *reason;         /* why new revisions were made; NULL for a plain print */
 } tw_print_opts;
 
+/* Labels per volume unless told otherwise: peak memory stays near 100 MiB however many labels
+ * a run prints (measured in docs/performance.md). */
+#define TW_DEFAULT_VOLUME_SIZE 2000
+/* Largest volume: libharu 2.3.0 refuses a page tree of more than 32767 pages. */
+#define TW_MAX_VOLUME_SIZE 30000
+/* Most volumes in one run (three-digit numbers). */
+#define TW_MAX_VOLUMES 999
+
 /* Draw and write n labels. Returns a TW_EXIT_* status; on failure err holds the message. */
 int tw_print_labels(const tw_label *labels, size_t n, const tw_print_opts *o, char *err,
                     size_t errlen);
+
+/* The same with volume_size labels per volume (1 to TW_MAX_VOLUME_SIZE; 0 means the
+ * default). TW_EXIT_USAGE when the run would need more than TW_MAX_VOLUMES volumes. */
+int tw_print_labels_in_volumes(const tw_label *labels, size_t n, const tw_print_opts *o,
+                               size_t volume_size, char *err, size_t errlen);
+
+/* "DIR/NAME-007.pdf" for "DIR/NAME.pdf" and volume 7 (fresh string), NULL when out of
+ * memory. */
+char *tw_volume_path(const char *pdf_path, size_t volume);
 
 /* "DIR/NAME.manifest.json" for "DIR/NAME.pdf" (fresh string), NULL when out of memory. */
 char *tw_manifest_path_for(const char *pdf_path);

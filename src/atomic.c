@@ -12,8 +12,9 @@
 
 #include "tw_util.h"
 
-/* Temporary files to remove if a signal ends the run. A handful at most are open at once. */
-#define TW_MAX_PENDING 16
+/* Temporary files to remove if a signal ends the run: every volume of a print run (at most
+ * 999) is one until the set is published. */
+#define TW_MAX_PENDING 1024
 static char *pending[TW_MAX_PENDING];
 static int handlers_installed;
 

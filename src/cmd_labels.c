@@ -21,12 +21,15 @@
 static const char labels_usage[] =
     "usage: tagwright labels RESULTS [--site SITE.json] [--out labels.pdf] [--manifest M.json]\n"
     "                        [--bus ID]... [--draft] [--layout NAME|FILE] [--date YYYY-MM-DD]\n"
+    "                        [--volume-size N]\n"
     "  --out       PDF to write (default labels.pdf); written only if every label can be made\n"
     "  --manifest  record of printed labels (default: beside the PDF, NAME.manifest.json)\n"
     "  --bus       print only this equipment ID (repeatable)\n"
     "  --draft     print buses with errors as watermarked drafts, not for posting\n"
     "  --layout    shipped layout name or layout file (default 4x6)\n"
-    "  --date      print date on labels, manifest and PDF metadata (default today, UTC)\n";
+    "  --date      print date on labels, manifest and PDF metadata (default today, UTC)\n"
+    "  --volume-size  labels per PDF volume (default 2000, at most 30000); more labels are\n"
+    "              written as NAME-001.pdf, NAME-002.pdf, ...\n";
 
 typedef struct {
     const char *results, *site, *out, *manifest, *layout;
@@ -34,7 +37,22 @@ typedef struct {
     size_t bus_count;
     int draft;
     char date[11];
+    size_t volume_size;     /* 0: the default */
 } labels_args;
+
+/* --volume-size: a whole number from 1 to TW_MAX_VOLUME_SIZE. */
+static int parse_volume_size(const char *s, size_t *out)
+{
+    char *end;
+    unsigned long long v = 0;
+    if (*s >= '0' && *s <= '9')
+        v = strtoull(s, &end, 10);
+    if (!(*s >= '0' && *s <= '9') || *end || v < 1 || v > TW_MAX_VOLUME_SIZE)
+        return tw_usage_error("labels", "--volume-size: expected a whole number of labels from "
+                              "1 to %d, got '%s'", TW_MAX_VOLUME_SIZE, s);
+    *out = (size_t)v;
+    return 0;
+}
 
 static int parse_args(int argc, char **argv, labels_args *a)
 {
@@ -43,6 +61,7 @@ static int parse_args(int argc, char **argv, labels_args *a)
         {"manifest", required_argument, NULL, 'm'}, {"bus", required_argument, NULL, 'b'},
         {"draft", no_argument, NULL, 'd'},        {"layout", required_argument, NULL, 'l'},
         {"date", required_argument, NULL, 't'},   {"help", no_argument, NULL, 'h'},
+        {"volume-size", required_argument, NULL, 'V'},
         {NULL, 0, NULL, 0},
     };
     memset(a, 0, sizeof *a);
@@ -64,6 +83,10 @@ static int parse_args(int argc, char **argv, labels_args *a)
         case 't':
             if (tw_option_date(optarg, a->date) != 0)
                 return tw_usage_error("labels", "--date: expected YYYY-MM-DD, got '%s'", optarg);
+            break;
+        case 'V':
+            if (parse_volume_size(optarg, &a->volume_size) != 0)
+                return TW_EXIT_USAGE;
             break;
         case 'h': fputs(labels_usage, stdout); return -1;
         default: return tw_usage_error("labels", "unknown option; see 'tagwright labels --help'");
@@ -113,6 +136,22 @@ static void print_findings(const tw_diags *d, const tw_bus **sel, size_t n, int 
             tw_diag_print(&d->items[i], stderr);
 }
 
+/* "labels.pdf: 12 labels", or the first and last volume when the run was split. */
+static void print_written(const labels_args *a, size_t n)
+{
+    size_t per = a->volume_size ? a->volume_size : TW_DEFAULT_VOLUME_SIZE;
+    size_t vols = (n + per - 1) / per;
+    if (vols <= 1) {
+        printf("%s: %zu label%s\n", a->out, n, n == 1 ? "" : "s");
+        return;
+    }
+    char *first = tw_volume_path(a->out, 1), *last = tw_volume_path(a->out, vols);
+    printf("%s ... %s: %zu labels in %zu volumes of up to %zu\n", first ? first : a->out,
+           last ? last : a->out, n, vols, per);
+    free(first);
+    free(last);
+}
+
 static int run(tw_study *st, const labels_args *a)
 {
     char err[1024] = "";
@@ -147,12 +186,18 @@ static int run(tw_study *st, const labels_args *a)
         rc = TW_EXIT_DATA;
         goto done;
     }
+    /* The labels hold copies of all they print: the rows can go before the PDFs are drawn,
+     * which keeps the peak memory of a large run down (docs/performance.md). */
+    tw_bus_set_free(&st->buses);
+    tw_results_free(&st->results);
+    free(sel);
+    sel = NULL;
     tw_print_opts po = {a->out, a->manifest, a->date, &layout, &st->site, NULL};
-    rc = tw_print_labels(labels, n, &po, err, sizeof err);
+    rc = tw_print_labels_in_volumes(labels, n, &po, a->volume_size, err, sizeof err);
     if (rc != TW_EXIT_OK)
         fprintf(stderr, "tagwright labels: %s\n", err);
     else
-        printf("%s: %zu label%s\n", a->out, n, n == 1 ? "" : "s");
+        print_written(a, n);
 done:
     for (size_t i = 0; labels && i < n; i++)
         tw_label_free(&labels[i]);

@@ -91,6 +91,19 @@ static HPDF_Font load_font(tw_pdf_doc *d, const char *file, char *err, size_t er
     return font;
 }
 
+/* libharu embeds the glyphs a document has measured or shown. tw_text_width() measures ASCII
+ * from a cache filled by the first document of the thread, so each document marks every
+ * printable ASCII glyph itself: the glyphs embedded, and so the bytes, never depend on what
+ * an earlier document measured. */
+static void use_printable_ascii(HPDF_Font f)
+{
+    char ascii[96];
+    for (int c = ' '; c <= '~'; c++)
+        ascii[c - ' '] = (char)c;
+    ascii[95] = '\0';
+    HPDF_Font_TextWidth(f, (const HPDF_BYTE *)ascii, 95);
+}
+
 static int set_dates(tw_pdf_doc *d, const char *creation_date, char *err, size_t errlen)
 {
     tw_date day;
@@ -121,6 +134,8 @@ int tw_pdf_doc_open(tw_pdf_doc *d, const char *creation_date, char *err, size_t 
         !(d->regular = load_font(d, TW_FONT_REGULAR, err, errlen)) ||
         !(d->bold = load_font(d, TW_FONT_BOLD, err, errlen)))
         goto fail;
+    use_printable_ascii(d->regular);
+    use_printable_ascii(d->bold);
     if (tw_pdf_doc_check(d, err, errlen) != 0)
         goto fail;
     return 0;
@@ -139,19 +154,29 @@ HPDF_Page tw_pdf_doc_page(tw_pdf_doc *d, double w, double h)
     return d->error ? NULL : p;
 }
 
-int tw_pdf_doc_save(tw_pdf_doc *d, const char *path, char *err, size_t errlen)
+int tw_pdf_doc_write(tw_pdf_doc *d, const char *path, const char *target, char *err,
+                     size_t errlen)
 {
     char why[200];
     if (tw_pdf_doc_check(d, why, sizeof why) != 0) {
-        snprintf(err, errlen, "%s: not written: %s", path, why);
+        snprintf(err, errlen, "%s: not written: %s", target, why);
         return -1;
     }
+    if (HPDF_SaveToFile(d->pdf, path) != HPDF_OK || d->error) {
+        tw_pdf_doc_check(d, why, sizeof why);
+        snprintf(err, errlen, "%s: cannot write: %s", target, d->error ? why : "PDF library error");
+        return -1;
+    }
+    d->saved = 1;
+    return 0;
+}
+
+int tw_pdf_doc_save(tw_pdf_doc *d, const char *path, char *err, size_t errlen)
+{
     char *tmp = tw_atomic_tmp_path(path, err, errlen);
     if (!tmp)
         return -1;
-    if (HPDF_SaveToFile(d->pdf, tmp) != HPDF_OK || d->error) {
-        tw_pdf_doc_check(d, why, sizeof why);
-        snprintf(err, errlen, "%s: cannot write: %s", path, d->error ? why : "PDF library error");
+    if (tw_pdf_doc_write(d, tmp, path, err, errlen) != 0) {
         unlink(tmp);
         tw_atomic_forget(tmp);
         free(tmp);
@@ -166,6 +191,11 @@ void tw_pdf_doc_close(tw_pdf_doc *d)
 {
     if (!d)
         return;
+    /* libharu 2.3.0 frees the DecodeParms dictionary of a 1-bit (CCITT) image only when the
+     * document is written (checked with valgrind): a document freed unsaved, as on a refused
+     * run, is first written to libharu's own memory stream and thrown away. */
+    if (d->pdf && !d->saved && HPDF_GetCurrentPage(d->pdf))
+        HPDF_SaveToStream(d->pdf);
     if (d->pdf)
         HPDF_Free(d->pdf);
     memset(d, 0, sizeof *d);
@@ -195,10 +225,56 @@ int tw_text_ok(const char *s)
     return 1;
 }
 
+/* Glyph widths of printable ASCII for the fonts measured last, by font name: every label
+ * measures its text many times while fitting it, and HPDF_Font_TextWidth decodes and looks up
+ * each character afresh. HPDF_Font_TextWidth's width is the plain sum of glyph widths (no
+ * kerning), so summing cached widths gives the same number. Keyed by name, not by handle: a
+ * handle is per document and its address may be reused by another font. One cache per thread. */
+#define WIDTH_CACHE_FONTS 4
+typedef struct {
+    char name[64];
+    unsigned short w[95]; /* ' ' .. '~', in 1/1000 em */
+} ascii_widths;
+
+static _Thread_local ascii_widths width_cache[WIDTH_CACHE_FONTS];
+static _Thread_local int width_cache_next;
+
+static const ascii_widths *widths_for(HPDF_Font f)
+{
+    const char *name = HPDF_Font_GetFontName(f);
+    if (!name || strlen(name) >= sizeof width_cache[0].name)
+        return NULL;
+    for (int i = 0; i < WIDTH_CACHE_FONTS; i++)
+        if (!strcmp(width_cache[i].name, name))
+            return &width_cache[i];
+    ascii_widths *c = &width_cache[width_cache_next];
+    for (int ch = ' '; ch <= '~'; ch++) {
+        HPDF_BYTE b = (HPDF_BYTE)ch;
+        HPDF_TextWidth tw = HPDF_Font_TextWidth(f, &b, 1);
+        if (tw.width > 0xFFFF)
+            return NULL;
+        c->w[ch - ' '] = (unsigned short)tw.width;
+    }
+    snprintf(c->name, sizeof c->name, "%s", name);
+    width_cache_next = (width_cache_next + 1) % WIDTH_CACHE_FONTS;
+    return c;
+}
+
 double tw_text_width(HPDF_Font f, double pt, const char *s, size_t len)
 {
     if (len == 0)
         return 0;
+    const ascii_widths *c = widths_for(f);
+    unsigned long sum = 0;
+    size_t i = 0;
+    for (; c && i < len; i++) {
+        unsigned char ch = (unsigned char)s[i];
+        if (ch < ' ' || ch > '~')
+            break;
+        sum += c->w[ch - ' '];
+    }
+    if (c && i == len)
+        return (double)sum * pt / 1000.0;
     HPDF_TextWidth tw = HPDF_Font_TextWidth(f, (const HPDF_BYTE *)s, (HPDF_UINT)len);
     return tw.width * pt / 1000.0;
 }
@@ -322,14 +398,36 @@ double tw_fit_size(HPDF_Font f, const char *s, double w, int max_lines, double s
     return 0;
 }
 
+/* Colour and font operators are written only when they change what is in effect. libharu
+ * keeps the graphics state (and its stack across q/Q) and answers what is current, so skipping
+ * a repeat is exact; it spares the operator (each one also costs libharu a 512-byte buffer
+ * clear) and the bytes to compress - a tenth of a label's page stream. */
+static int same_rgb(HPDF_RGBColor cur, tw_rgb c)
+{
+    return cur.r == (HPDF_REAL)c.r && cur.g == (HPDF_REAL)c.g && cur.b == (HPDF_REAL)c.b;
+}
+
 static void set_fill(HPDF_Page p, tw_rgb c)
 {
+    if (HPDF_Page_GetFillingColorSpace(p) == HPDF_CS_DEVICE_RGB &&
+        same_rgb(HPDF_Page_GetRGBFill(p), c))
+        return;
     HPDF_Page_SetRGBFill(p, (HPDF_REAL)c.r, (HPDF_REAL)c.g, (HPDF_REAL)c.b);
 }
 
 static void set_stroke(HPDF_Page p, tw_rgb c)
 {
+    if (HPDF_Page_GetStrokingColorSpace(p) == HPDF_CS_DEVICE_RGB &&
+        same_rgb(HPDF_Page_GetRGBStroke(p), c))
+        return;
     HPDF_Page_SetRGBStroke(p, (HPDF_REAL)c.r, (HPDF_REAL)c.g, (HPDF_REAL)c.b);
+}
+
+static void set_font(HPDF_Page p, HPDF_Font f, double pt)
+{
+    if (HPDF_Page_GetCurrentFont(p) == f && HPDF_Page_GetCurrentFontSize(p) == (HPDF_REAL)pt)
+        return;
+    HPDF_Page_SetFontAndSize(p, f, (HPDF_REAL)pt);
 }
 
 void tw_draw_text(HPDF_Page p, HPDF_Font f, double pt, double x, double y, const char *s,
@@ -345,7 +443,7 @@ void tw_draw_text(HPDF_Page p, HPDF_Font f, double pt, double x, double y, const
     text[len] = '\0';
     set_fill(p, colour);
     HPDF_Page_BeginText(p);
-    HPDF_Page_SetFontAndSize(p, f, (HPDF_REAL)pt);
+    set_font(p, f, pt);
     HPDF_Page_TextOut(p, (HPDF_REAL)x, (HPDF_REAL)y, text);
     HPDF_Page_EndText(p);
     if (text != small)
@@ -406,30 +504,45 @@ double tw_qr_module_pt(int modules, double side, double dpi, int min_dots)
     return m >= 0.5 ? m : 0;
 }
 
-/* The symbol as one grey image on a white quiet zone, one pixel per module, each pixel either
- * black or white, Flate-compressed with the rest of the document (a few hundred bytes where
- * rectangles would take kilobytes of content and most of the run time). Scaled by a whole
- * number of printer dots, it prints with sharp edges; /Interpolate is false by default (ISO
- * 32000-1 8.9.5.3), so viewers do not smooth it. (libharu's 1-bit loader is not used: it
- * leaks a dictionary when a document is freed unsaved.) */
+/* The symbol as one 1-bit image on a white quiet zone, one pixel per module (1 = white in
+ * DeviceGray with the default /Decode [0 1], ISO 32000-1 8.9.5.2), Flate-compressed with the
+ * rest of the document: about 300 bytes per label, where rectangles would take kilobytes of
+ * content and an 8-bit image eight times the data to compress (it cost a third of the run
+ * time). Scaled by a whole number of printer dots it prints with sharp edges; /Interpolate is
+ * false by default (ISO 32000-1 8.9.5.3), so viewers do not smooth it.
+ *
+ * libharu sizes a raw image as width * height / 8 bytes, without padding each row to a whole
+ * byte as PDF does, so the image is made a multiple of 8 pixels wide: up to 3 white columns
+ * left of the symbol and up to 4 right of it, inside the 4-module quiet zone. (libharu's CCITT
+ * loader, HPDF_Image_LoadRaw1BitImageFromMem, is not used: a document freed without being
+ * saved leaks its DecodeParms dictionary - checked with valgrind - and its encoder state is
+ * a process-wide global, so it cannot run on two documents at once.) */
 int tw_draw_qr(HPDF_Doc pdf, HPDF_Page p, const tw_qr *q, double x, double y, double module)
 {
     int n = q->width + 2 * TW_QR_QUIET_MODULES;
-    size_t w = (size_t)q->width;
-    unsigned char *px = malloc(w * w);
-    if (!px)
+    size_t w = (size_t)q->width, cols = (w + 7) / 8 * 8, stride = cols / 8;
+    size_t left = (cols - w) / 2;
+    unsigned char *bits = malloc(stride * w);
+    if (!bits)
         return -1;
-    for (size_t i = 0; i < w * w; i++)
-        px[i] = q->dark[i] ? 0 : 0xFF;
-    HPDF_Image img = HPDF_LoadRawImageFromMem(pdf, px, (HPDF_UINT)w, (HPDF_UINT)w,
-                                              HPDF_CS_DEVICE_GRAY, 8);
-    free(px);
+    memset(bits, 0xFF, stride * w);
+    for (size_t r = 0; r < w; r++) {
+        const unsigned char *row = q->dark + r * w;
+        unsigned char *out = bits + r * stride;
+        for (size_t c = 0; c < w; c++)
+            if (row[c])
+                out[(c + left) >> 3] &= (unsigned char)~(0x80u >> ((c + left) & 7));
+    }
+    HPDF_Image img = HPDF_LoadRawImageFromMem(pdf, bits, (HPDF_UINT)cols, (HPDF_UINT)w,
+                                              HPDF_CS_DEVICE_GRAY, 1);
+    free(bits);
     if (!img)
         return -1;
     tw_draw_fill(p, (tw_box){x, y, n * module, n * module}, TW_WHITE); /* quiet zone */
     double quiet = TW_QR_QUIET_MODULES * module;
-    HPDF_Page_DrawImage(p, img, (HPDF_REAL)(x + quiet), (HPDF_REAL)(y + quiet),
-                        (HPDF_REAL)(q->width * module), (HPDF_REAL)(q->width * module));
+    HPDF_Page_DrawImage(p, img, (HPDF_REAL)(x + quiet - (double)left * module),
+                        (HPDF_REAL)(y + quiet), (HPDF_REAL)((double)cols * module),
+                        (HPDF_REAL)(q->width * module));
     return 0;
 }
 

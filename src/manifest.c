@@ -44,8 +44,7 @@ static tw_manifest_entry *entry_new(tw_manifest *m)
     return e;
 }
 
-/* The current index points at entries[].equipment_id, so it is rebuilt whenever the array
- * may have moved. */
+/* Build the current index from the loaded entries. */
 static int reindex(tw_manifest *m)
 {
     tw_map_free(&m->current);
@@ -341,7 +340,11 @@ int tw_manifest_record(tw_manifest *m, const tw_manifest_print *p)
     int revision = has_cur ? m->entries[ci].revision + 1 : 1;
     char *changes = has_cur ? tw_manifest_changes(m->entries[ci].content, p->content) : NULL;
     char *superseded_on = has_cur ? tw_strdup(p->printed) : NULL;
-    if (fill_entry(e, p, revision) != 0 || (has_cur && (!changes || !superseded_on))) {
+    /* The index holds pointers to the equipment ID strings, which never move, and array
+     * positions, so one put keeps it right (rebuilding it per record made printing quadratic).
+     * Put before committing: on failure the manifest is unchanged. */
+    if (fill_entry(e, p, revision) != 0 || (has_cur && (!changes || !superseded_on)) ||
+        tw_map_put(&m->current, e->equipment_id, m->count) != 0) {
         entry_free(e);
         free(changes);
         free(superseded_on);
@@ -354,8 +357,6 @@ int tw_manifest_record(tw_manifest *m, const tw_manifest_print *p)
         free(m->entries[ci].superseded_on);
         m->entries[ci].superseded_on = superseded_on;
     }
-    if (reindex(m) != 0)
-        return -1;
     return revision;
 }
 
@@ -392,27 +393,47 @@ static cJSON *entry_json(const tw_manifest_entry *e)
     return o;
 }
 
+/* One entry as cJSON_Print() prints it two levels deep: every line after the first indented
+ * by two more tabs. (cJSON escapes line breaks inside strings, so each '\n' is layout.) */
+static int write_entry(FILE *fp, const tw_manifest_entry *e, int first)
+{
+    cJSON *o = entry_json(e);
+    char *text = o ? cJSON_Print(o) : NULL;
+    cJSON_Delete(o);
+    if (!text)
+        return -1;
+    int bad = !first && fputs(", ", fp) < 0;
+    for (const char *p = text; !bad && *p;) {
+        const char *nl = strchr(p, '\n');
+        size_t n = nl ? (size_t)(nl - p) + 1 : strlen(p);
+        bad = fwrite(p, 1, n, fp) != n || (nl && fputs("\t\t", fp) < 0);
+        p += n;
+    }
+    free(text);
+    return bad ? -1 : 0;
+}
+
+/* Written entry by entry, byte for byte what cJSON_Print() gives for the whole document, so
+ * that a large manifest never needs its whole JSON tree in memory (100,000 labels would take
+ * some 300 MiB). */
 int tw_manifest_save(tw_manifest *m, char *err, size_t errlen)
 {
-    cJSON *root = cJSON_CreateObject();
-    cJSON *labels = root ? cJSON_AddArrayToObject(root, "labels") : NULL;
-    int bad = !labels || !cJSON_AddStringToObject(root, "format", MANIFEST_FORMAT) ||
-              !cJSON_AddNumberToObject(root, "version", MANIFEST_VERSION);
-    for (size_t i = 0; !bad && i < m->count; i++) {
-        cJSON *o = entry_json(&m->entries[i]);
-        bad = !o || !cJSON_AddItemToArray(labels, o);
-    }
-    char *text = bad ? NULL : cJSON_Print(root);
-    cJSON_Delete(root);
-    if (!text) {
-        snprintf(err, errlen, "%s: out of memory while writing the manifest", m->path);
+    tw_atomic a;
+    if (tw_atomic_open(&a, m->path, err, errlen) != 0)
+        return -1;
+    int bad = fputs("{\n\t\"labels\":\t[", a.fp) < 0;
+    for (size_t i = 0; !bad && i < m->count; i++)
+        bad = write_entry(a.fp, &m->entries[i], i == 0) != 0;
+    if (!bad)
+        bad = fprintf(a.fp, "],\n\t\"format\":\t\"%s\",\n\t\"version\":\t%d\n}\n",
+                      MANIFEST_FORMAT, MANIFEST_VERSION) < 0;
+    if (bad) {
+        snprintf(err, errlen, "%s: out of memory or write error while writing the manifest",
+                 m->path);
+        tw_atomic_abort(&a);
         return -1;
     }
-    size_t n = strlen(text);
-    text[n] = '\n'; /* cJSON_Print's buffer has room for its own NUL; replace it */
-    int rc = tw_atomic_write(m->path, text, n + 1, err, errlen);
-    free(text);
-    return rc;
+    return tw_atomic_commit(&a, err, errlen);
 }
 
 void tw_manifest_close(tw_manifest *m)

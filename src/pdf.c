@@ -503,6 +503,7 @@ typedef struct {
     block body;                  /* body and study rows */
     double header_pt;
     tw_qr qr;
+    int qr_borrowed;             /* qr belongs to the caller (encoded ahead, maybe on a thread) */
     double module, hash_pt;
     char hash_caption[160];
     tw_span hash_lines[3];
@@ -513,7 +514,8 @@ typedef struct {
 
 static void plan_free(plan *pl)
 {
-    tw_qr_free(&pl->qr);
+    if (!pl->qr_borrowed)
+        tw_qr_free(&pl->qr);
     for (int i = 0; i < pl->n_owned; i++)
         free(pl->owned[i]);
     free(pl);
@@ -643,7 +645,9 @@ static int plan_qr(const tw_label_doc *doc, plan *pl, const tw_label *l, const c
 {
     const tw_layout *lay = &doc->layout;
     if (payload && *payload) {
-        if (tw_qr_encode(payload, &pl->qr) != 0) {
+        if (pl->qr_borrowed) {
+            /* encoded ahead by the caller from this payload */
+        } else if (tw_qr_encode(payload, &pl->qr) != 0) {
             snprintf(err, errlen, "label %s: the QR payload (%zu bytes) cannot be encoded; "
                      "shorten the record link", id, strlen(payload));
             return -1;
@@ -944,6 +948,12 @@ static void draw_sheet_marks(HPDF_Page p, const tw_label_doc *doc, double ox, do
 int tw_label_doc_add(tw_label_doc *doc, const tw_label *label, const char *qr_payload,
                      char *err, size_t errlen)
 {
+    return tw_label_doc_add_encoded(doc, label, qr_payload, NULL, err, errlen);
+}
+
+int tw_label_doc_add_encoded(tw_label_doc *doc, const tw_label *label, const char *qr_payload,
+                             const tw_qr *qr, char *err, size_t errlen)
+{
     if (tw_pdf_doc_check(&doc->pdf, err, errlen) != 0)
         return -1;
     if (check_label(label, qr_payload, err, errlen) != 0)
@@ -952,6 +962,10 @@ int tw_label_doc_add(tw_label_doc *doc, const tw_label *label, const char *qr_pa
     if (!pl) {
         snprintf(err, errlen, "label %s: out of memory", label_id(label));
         return -1;
+    }
+    if (qr && qr->dark && qr_payload && *qr_payload) {
+        pl->qr = *qr;
+        pl->qr_borrowed = 1;
     }
     int page_no = -1;
     double ox = 0, oy = 0;
@@ -993,6 +1007,16 @@ int tw_label_doc_save(tw_label_doc *doc, const char *path, char *err, size_t err
         return -1;
     }
     return tw_pdf_doc_save(&doc->pdf, path, err, errlen);
+}
+
+int tw_label_doc_write(tw_label_doc *doc, const char *path, const char *target, char *err,
+                       size_t errlen)
+{
+    if (doc->count == 0) {
+        snprintf(err, errlen, "%s: not written: no labels", target);
+        return -1;
+    }
+    return tw_pdf_doc_write(&doc->pdf, path, target, err, errlen);
 }
 
 void tw_label_doc_free(tw_label_doc *doc)

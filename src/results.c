@@ -2,6 +2,7 @@
  * choosing the CSV or JSON reader (see tw_results.h). */
 #include "tw_results.h"
 
+#include <ctype.h>
 #include <math.h>
 #include <stdarg.h>
 #include <stdint.h>
@@ -212,6 +213,34 @@ static const char *text_problem(tw_field f, const char *v, uint32_t *bad_cp)
     return NULL;
 }
 
+/* The common case, taken without the general checks: after trimming, nothing but printable
+ * ASCII (so no line break to normalise, nothing to decode, no control character), within the
+ * length limit. 1 when the value was stored (or is empty, so absent), 0 to take the long way
+ * (which also reports out of memory). */
+static int set_plain_ascii(tw_row *r, tw_field f, const char *s, size_t len)
+{
+    size_t a = 0, b = len;
+    while (a < b && isspace((unsigned char)s[a]))
+        a++;
+    while (b > a && isspace((unsigned char)s[b - 1]))
+        b--;
+    size_t max = f == TW_F_EQUIPMENT_ID ? TW_MAX_ID_BYTES : TW_MAX_TEXT_BYTES;
+    if (b - a > max)
+        return 0;
+    for (size_t i = a; i < b; i++)
+        if ((unsigned char)s[i] < 0x20 || (unsigned char)s[i] > 0x7E)
+            return 0;
+    if (a == b)
+        return 1;
+    char *v = tw_strndup(s + a, b - a);
+    if (!v)
+        return 0;
+    free(r->text[f]);
+    r->text[f] = v;
+    r->present |= bit(f);
+    return 1;
+}
+
 void tw_row_set_text(tw_row *r, const tw_column *c, const char *s, size_t len, tw_diags *d)
 {
     tw_field f = c->field;
@@ -223,6 +252,8 @@ void tw_row_set_text(tw_row *r, const tw_column *c, const char *s, size_t len, t
         mark_invalid(r, f);
         return;
     }
+    if (set_plain_ascii(r, f, s, len))
+        return;
     char *v = tw_strndup(s, len);
     if (!v) {
         tw_row_diag(d, r, TW_ERROR, f, c->name, "out of memory");
@@ -311,6 +342,45 @@ int tw_parse_yes_no(const char *s, int *out)
     return -1;
 }
 
+/* The plain decimals study tools write ("21.4", "-0.035", "480"), parsed without strtod: at
+ * most 15 significant digits make a whole number m < 2^53, held exactly in a double, and
+ * 10^k for k <= 22 is exact too, so m / 10^k is one correctly rounded division - the value
+ * strtod gives (the fast path of W. D. Clinger, "How to read floating point numbers
+ * accurately", PLDI 1990). -1 for anything else, which tw_parse_double then handles. */
+static int parse_plain_decimal(const char *s, double *out)
+{
+    static const double pow10[] = {1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
+                                   1e8,  1e9,  1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
+    int neg = *s == '-';
+    if (*s == '-' || *s == '+')
+        s++;
+    uint64_t m = 0;
+    int digits = 0, frac = -1, any = 0;
+    for (; *s; s++) {
+        if (*s >= '0' && *s <= '9') {
+            any = 1;
+            if (m == 0 && *s == '0' && frac < 0)
+                continue; /* a leading zero of the whole part */
+            if (++digits > 15)
+                return -1;
+            m = m * 10 + (uint64_t)(*s - '0');
+            if (frac >= 0)
+                frac++;
+        } else if (*s == '.' && frac < 0) {
+            frac = 0;
+        } else {
+            return -1;
+        }
+    }
+    if (!any)
+        return -1;
+    if (frac < 0)
+        frac = 0;
+    double v = (double)m / pow10[frac];
+    *out = neg ? -v : v;
+    return 0;
+}
+
 /* Report a cell that does not hold the expected kind of value. */
 static void bad_cell(tw_row *r, const tw_column *c, const char *expected, const char *s,
                      size_t len, tw_diags *d)
@@ -337,11 +407,17 @@ void tw_row_set_cell(tw_row *r, const tw_column *c, const char *s, size_t len, t
         bad_cell(r, c, expected, s, len, d);
         return;
     }
-    char *v = tw_strndup(s, len);
+    /* Numbers are short: a copy on the stack spares a malloc per cell (ten per row). */
+    char small[64];
+    char *v = len < sizeof small ? small : tw_strndup(s, len);
     if (!v) {
         tw_row_diag(d, r, TW_ERROR, c->field, c->name, "out of memory");
         mark_invalid(r, c->field);
         return;
+    }
+    if (v == small) {
+        memcpy(small, s, len);
+        small[len] = '\0';
     }
     tw_trim(v);
     double x = 0;
@@ -349,14 +425,16 @@ void tw_row_set_cell(tw_row *r, const tw_column *c, const char *s, size_t len, t
     if (!*v) {
         /* an empty cell is an absent value */
     } else if (c->kind == TW_KIND_BOOL ? tw_parse_yes_no(v, &yes) != 0
-                                       : tw_parse_double(v, &x) != 0) {
+                                       : parse_plain_decimal(v, &x) != 0 &&
+                                             tw_parse_double(v, &x) != 0) {
         bad_cell(r, c, expected, s, len, d);
     } else if (c->kind == TW_KIND_INTEGER && x != floor(x)) {
         bad_cell(r, c, expected, s, len, d);
     } else {
         tw_row_set_number(r, c, c->kind == TW_KIND_BOOL ? yes : x, d);
     }
-    free(v);
+    if (v != small)
+        free(v);
 }
 
 static int ends_with_json(const char *path)
