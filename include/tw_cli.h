@@ -22,6 +22,7 @@ int cmd_diff(int argc, char **argv);
 int cmd_due(int argc, char **argv);
 int cmd_verify(int argc, char **argv);
 int cmd_permit(int argc, char **argv);
+int cmd_layouts(int argc, char **argv);
 
 /* Print "tagwright CMD: message" to stderr and return TW_EXIT_USAGE. */
 int tw_usage_error(const char *cmd, const char *fmt, ...)

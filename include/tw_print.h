@@ -50,6 +50,12 @@ int tw_print_labels(const tw_label *labels, size_t n, const tw_print_opts *o, ch
 int tw_print_labels_in_volumes(const tw_label *labels, size_t n, const tw_print_opts *o,
                                size_t volume_size, char *err, size_t errlen);
 
+/* The same with the volumes drawn by jobs worker processes at once (0: one per processor, at
+ * most 4). The output is the same bytes whatever the number; a failing worker fails the run
+ * and nothing is published. */
+int tw_print_labels_jobs(const tw_label *labels, size_t n, const tw_print_opts *o,
+                         size_t volume_size, int jobs, char *err, size_t errlen);
+
 /* "DIR/NAME-007.pdf" for "DIR/NAME.pdf" and volume 7 (fresh string), NULL when out of
  * memory. */
 char *tw_volume_path(const char *pdf_path, size_t volume);

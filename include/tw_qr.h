@@ -3,16 +3,18 @@
  *
  * Payload: the site's record-link template with {study}, {equipment}, {revision} and {hash}
  * replaced (values percent-encoded). A template without {hash} gets "#sha256=<hash>" appended,
- * so every payload carries the content hash. Encoding: libqrencode, 8-bit mode, error
- * correction level M, smallest version that fits.
+ * so every payload carries the content hash. Encoding: libqrencode, 8-bit mode (with numeric
+ * and alphanumeric segments where they are shorter), error correction level M, smallest
+ * version that fits.
  */
 #ifndef TW_QR_H
 #define TW_QR_H
 
 #include <stddef.h>
 
-/* Default record link when the site names none. */
-#define TW_DEFAULT_RECORD_LINK "https://records.invalid/study/{study}/{equipment}?rev={revision}&sha256={hash}"
+/* Default record link when the site names none: short, because the payload's length decides
+ * the symbol's size and its encoding time (version 7, 45 x 45, for 16-character IDs). */
+#define TW_DEFAULT_RECORD_LINK "https://records.invalid/{study}/{equipment}/{revision}#{hash}"
 
 /* Build the payload; fresh string (caller frees), NULL when out of memory. */
 char *tw_qr_payload(const char *link_template, const char *study_id, const char *equipment_id,

@@ -21,7 +21,7 @@
 static const char labels_usage[] =
     "usage: tagwright labels RESULTS [--site SITE.json] [--out labels.pdf] [--manifest M.json]\n"
     "                        [--bus ID]... [--draft] [--layout NAME|FILE] [--date YYYY-MM-DD]\n"
-    "                        [--volume-size N]\n"
+    "                        [--volume-size N] [--jobs N]\n"
     "  --out       PDF to write (default labels.pdf); written only if every label can be made\n"
     "  --manifest  record of printed labels (default: beside the PDF, NAME.manifest.json)\n"
     "  --bus       print only this equipment ID (repeatable)\n"
@@ -29,7 +29,9 @@ static const char labels_usage[] =
     "  --layout    shipped layout name or layout file (default 4x6)\n"
     "  --date      print date on labels, manifest and PDF metadata (default today, UTC)\n"
     "  --volume-size  labels per PDF volume (default 2000, at most 30000); more labels are\n"
-    "              written as NAME-001.pdf, NAME-002.pdf, ...\n";
+    "              written as NAME-001.pdf, NAME-002.pdf, ...\n"
+    "  --jobs      volumes drawn at once, each by a process of its own (default: one per\n"
+    "              processor, at most 4); the output is the same whatever the number\n";
 
 typedef struct {
     const char *results, *site, *out, *manifest, *layout;
@@ -38,7 +40,22 @@ typedef struct {
     int draft;
     char date[11];
     size_t volume_size;     /* 0: the default */
+    int jobs;               /* 0: one per processor, at most 4 */
 } labels_args;
+
+/* --jobs: a whole number from 1 to 64. */
+static int parse_jobs(const char *s, int *out)
+{
+    char *end;
+    long v = 0;
+    if (*s >= '0' && *s <= '9')
+        v = strtol(s, &end, 10);
+    if (!(*s >= '0' && *s <= '9') || *end || v < 1 || v > 64)
+        return tw_usage_error("labels", "--jobs: expected a whole number from 1 to 64, got '%s'",
+                              s);
+    *out = (int)v;
+    return 0;
+}
 
 /* --volume-size: a whole number from 1 to TW_MAX_VOLUME_SIZE. */
 static int parse_volume_size(const char *s, size_t *out)
@@ -61,7 +78,7 @@ static int parse_args(int argc, char **argv, labels_args *a)
         {"manifest", required_argument, NULL, 'm'}, {"bus", required_argument, NULL, 'b'},
         {"draft", no_argument, NULL, 'd'},        {"layout", required_argument, NULL, 'l'},
         {"date", required_argument, NULL, 't'},   {"help", no_argument, NULL, 'h'},
-        {"volume-size", required_argument, NULL, 'V'},
+        {"volume-size", required_argument, NULL, 'V'}, {"jobs", required_argument, NULL, 'j'},
         {NULL, 0, NULL, 0},
     };
     memset(a, 0, sizeof *a);
@@ -86,6 +103,10 @@ static int parse_args(int argc, char **argv, labels_args *a)
             break;
         case 'V':
             if (parse_volume_size(optarg, &a->volume_size) != 0)
+                return TW_EXIT_USAGE;
+            break;
+        case 'j':
+            if (parse_jobs(optarg, &a->jobs) != 0)
                 return TW_EXIT_USAGE;
             break;
         case 'h': fputs(labels_usage, stdout); return -1;
@@ -196,7 +217,7 @@ static int run(tw_study *st, const labels_args *a)
     free(sel);
     sel = NULL;
     tw_print_opts po = {a->out, a->manifest, a->date, &layout, &st->site, NULL};
-    rc = tw_print_labels_in_volumes(labels, n, &po, a->volume_size, err, sizeof err);
+    rc = tw_print_labels_jobs(labels, n, &po, a->volume_size, a->jobs, err, sizeof err);
     if (rc != TW_EXIT_OK)
         fprintf(stderr, "tagwright labels: %s\n", err);
     else

@@ -17,6 +17,7 @@
 
 #include "tw_analysis.h"
 #include "tw_date.h"
+#include "tw_messages.h"
 #include "tw_results.h"
 #include "tw_util.h"
 
@@ -54,9 +55,6 @@ static const char *const key_names[TW_L_COUNT] = {
 
 /* NFPA 70E 130.5(H): a PPE category is 1 to 4. */
 #define TW_MAX_PPE_CATEGORY 4
-
-/* Boundary note when the study gave no arc-flash boundary. */
-#define TW_NOTE_COMPUTED "computed from incident energy"
 
 const char *tw_label_key_name(tw_label_key k)
 {
@@ -200,6 +198,44 @@ static void setf(deriver *D, tw_label_key k, const char *fmt, ...)
     D->out->value[k] = text;
 }
 
+/*
+ * A value made of fixed words (glove class, "avoid contact", the computed-boundary note), in
+ * the label's language; on a two-language label both, English first, joined by " / ". The
+ * value is stored as printed, so the canonical form and the content hash cover the printed
+ * language: the same bus gives another hash in another language (docs/messages.md).
+ */
+static void set_words(deriver *D, tw_label_key k, int msg_id, const char *const *args, size_t n)
+{
+    tw_lang langs[TW_MAX_LANGS];
+    int nl = tw_langs_parse(D->site->language ? D->site->language : "en", langs);
+    if (nl == 0) {
+        langs[0] = TW_LANG_EN;   /* site.c accepts only known codes; English otherwise */
+        nl = 1;
+    }
+    char *parts[TW_MAX_LANGS] = {NULL};
+    size_t len = 1;
+    for (int i = 0; i < nl; i++) {
+        if (!(parts[i] = tw_msg_fill(langs[i], msg_id, args, n)))
+            break;
+        len += strlen(parts[i]) + strlen(TW_MSG_VALUE_SEP);
+    }
+    char *text = parts[nl - 1] ? malloc(len) : NULL;
+    if (text) {
+        text[0] = '\0';
+        for (int i = 0; i < nl; i++) {
+            if (i)
+                strcat(text, TW_MSG_VALUE_SEP);
+            strcat(text, parts[i]);
+        }
+        free(D->out->value[k]);
+        D->out->value[k] = text;
+    } else {
+        report(D, TW_ERROR, TW_F_COUNT, "out of memory while writing %s", key_names[k]);
+    }
+    for (int i = 0; i < nl; i++)
+        free(parts[i]);
+}
+
 /* Room for any double printed with %.2f (309 integer digits at most). */
 #define TW_NUM_BUF 330
 
@@ -335,8 +371,8 @@ static void derive_shock(deriver *D, double volts)
         else
             setf(D, TW_L_LIMITED_APPROACH, "%s (%.1f m)", a->limited_fixed_ft,
                  a->limited_fixed_mm / 1000);
-        if (a->restricted_mm <= 0)
-            set(D, TW_L_RESTRICTED_APPROACH, a->restricted_ft);
+        if (a->restricted_mm <= 0)   /* the table's "avoid contact" row */
+            set_words(D, TW_L_RESTRICTED_APPROACH, TW_M_AVOID_CONTACT, NULL, 0);
         else if (metric)
             setf(D, TW_L_RESTRICTED_APPROACH, "%.1f m", a->restricted_mm / 1000);
         else
@@ -347,7 +383,8 @@ static void derive_shock(deriver *D, double volts)
     if (g) {
         char v[TW_NUM_BUF];
         format_number(g->max_use_v_ac, v, sizeof v);
-        setf(D, TW_L_GLOVE_CLASS, "Class %s (max. use %s V AC)", g->name, v);
+        const char *args[] = {g->name, v};
+        set_words(D, TW_L_GLOVE_CLASS, TW_M_GLOVE_VALUE, args, 2);
     } else if (a) {
         /* Above class 4 rubber gloves are not the protection; printing none is safer than
          * printing a class that does not exist. */
@@ -493,11 +530,14 @@ static void derive_boundary(deriver *D)
                    "missing, and the boundary computed from incident energy is not a number");
             return;
         }
-        if (default_source)
-            setf(D, TW_L_BOUNDARY_NOTE, "%s, distance exponent %g (%s, %s)", TW_NOTE_COMPUTED,
-                 x, default_source, r->text[TW_F_EQUIPMENT_TYPE]);
-        else
-            set(D, TW_L_BOUNDARY_NOTE, TW_NOTE_COMPUTED);
+        if (default_source) {
+            char xs[32];
+            snprintf(xs, sizeof xs, "%g", x);
+            const char *args[] = {xs, default_source, r->text[TW_F_EQUIPMENT_TYPE]};
+            set_words(D, TW_L_BOUNDARY_NOTE, TW_M_BOUNDARY_COMPUTED_EXPONENT, args, 3);
+        } else {
+            set_words(D, TW_L_BOUNDARY_NOTE, TW_M_BOUNDARY_COMPUTED, NULL, 0);
+        }
     } else {
         report(D, TW_ERROR, TW_F_ARC_FLASH_BOUNDARY_MM,
                "missing, and it cannot be computed without incident energy, working distance "

@@ -8,11 +8,21 @@
  * the bytes do not depend on the threads. */
 #include "tw_print.h"
 
+#include <errno.h>
+#include <fcntl.h>
 #include <libgen.h>
 #include <pthread.h>
+#include <signal.h>
+#include <stdatomic.h>
+#include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/mman.h>
+#include <sys/wait.h>
 #include <unistd.h>
+#ifdef __linux__
+#include <sys/prctl.h>
+#endif
 
 #include "tw_atomic.h"
 #include "tw_cli.h"
@@ -26,6 +36,8 @@
 #define QR_AHEAD 256
 /* Most encoder threads; libqrencode is thread-safe as Debian builds it (with pthread). */
 #define QR_MAX_THREADS 4
+/* Most worker processes drawing volumes when the caller leaves it to us. */
+#define MAX_JOBS 4
 
 char *tw_manifest_path_for(const char *pdf_path)
 {
@@ -81,18 +93,17 @@ static void *qr_worker(void *arg)
     return NULL;
 }
 
-/* Workers for every processor but at most QR_MAX_THREADS; none on a single processor, where
- * the drawing thread encodes each code itself. */
-static void qr_pipe_start(qr_pipe *q, char *const *payloads, size_t n)
+/* Up to max_threads workers (0: the drawing thread encodes each code itself, as on a single
+ * processor). */
+static void qr_pipe_start(qr_pipe *q, char *const *payloads, size_t n, int max_threads)
 {
     memset(q, 0, sizeof *q);
     q->payloads = payloads;
     q->n = n;
-    long cpus = sysconf(_SC_NPROCESSORS_ONLN);
-    int want = cpus > QR_MAX_THREADS ? QR_MAX_THREADS : cpus > 1 ? (int)cpus : 0;
+    int want = max_threads > QR_MAX_THREADS ? QR_MAX_THREADS : max_threads;
     if (n < 2 * QR_AHEAD && want > 1)
         want = 1; /* a small batch is over before more threads would pay for themselves */
-    if (want == 0)
+    if (want <= 0)
         return;
     if (pthread_mutex_init(&q->mu, NULL) != 0)
         return;
@@ -162,59 +173,150 @@ static void qr_pipe_stop(qr_pipe *q)
     q->nthreads = 0;
 }
 
-/* ---- volumes: drawn here, written on a thread of their own --------------------------------- */
+/* ---- volumes: drawn, then written on a thread of their own ---------------------------------- */
 
 typedef struct {
     char *path;          /* final name */
     char *tmp;           /* written here first; NULL once published or removed */
 } volume;
 
+/* What the workers share, in memory shared across fork() when volumes are drawn in worker
+ * processes (libharu's CCITT encoder keeps its state in a process-wide global, so one process
+ * draws one document at a time). Volumes are taken in order from `next`; a worker stops as
+ * soon as a lower-numbered volume has failed, so the message is always the one a single worker
+ * would have given (the first failing label). */
+typedef struct {
+    _Atomic size_t next;       /* next volume to take */
+    _Atomic size_t failed_min; /* lowest failed volume; SIZE_MAX while none */
+} progress;
+
+#define VOL_PENDING 0
+#define VOL_DONE 1
+#define VOL_FAILED 2
+
+typedef struct {
+    progress *prog;
+    int *pages;                /* page of each label within its volume */
+    signed char *state;        /* VOL_* of each volume */
+    unsigned char *rc;         /* TW_EXIT_* of each failed volume */
+    char (*err)[512];          /* message of each failed volume */
+    size_t nvols;
+    int in_child;              /* a forked worker: write through /proc/self/fd */
+} shared_run;
+
+static void *shared_alloc(size_t size)
+{
+    void *p = mmap(NULL, size ? size : 1, PROT_READ | PROT_WRITE, MAP_SHARED | MAP_ANONYMOUS, -1,
+                   0);
+    return p == MAP_FAILED ? NULL : p;
+}
+
+static void shared_free(void *p, size_t size)
+{
+    if (p)
+        munmap(p, size ? size : 1);
+}
+
+static int shared_open(shared_run *s, size_t n, size_t nvols)
+{
+    memset(s, 0, sizeof *s);
+    s->nvols = nvols;
+    s->prog = shared_alloc(sizeof *s->prog);
+    s->pages = shared_alloc(n * sizeof *s->pages);
+    s->state = shared_alloc(nvols);
+    s->rc = shared_alloc(nvols);
+    s->err = shared_alloc(nvols * sizeof *s->err);
+    if (!s->prog || !s->pages || !s->state || !s->rc || !s->err)
+        return -1;
+    atomic_init(&s->prog->next, 0);
+    atomic_init(&s->prog->failed_min, SIZE_MAX);
+    return 0;
+}
+
+static void shared_close(shared_run *s, size_t n)
+{
+    shared_free(s->prog, sizeof *s->prog);
+    shared_free(s->pages, n * sizeof *s->pages);
+    shared_free(s->state, s->nvols);
+    shared_free(s->rc, s->nvols);
+    shared_free(s->err, s->nvols * sizeof *s->err);
+}
+
+static int lower_failed(const shared_run *s, size_t v)
+{
+    return atomic_load(&s->prog->failed_min) < v;
+}
+
+static void volume_failed(shared_run *s, size_t v, int rc, const char *err)
+{
+    snprintf(s->err[v], sizeof s->err[v], "%s", err);
+    s->rc[v] = (unsigned char)rc;
+    s->state[v] = VOL_FAILED;
+    size_t cur = atomic_load(&s->prog->failed_min);
+    while (v < cur && !atomic_compare_exchange_weak(&s->prog->failed_min, &cur, v))
+        ;
+}
+
 typedef struct {
     tw_label_doc *doc;
     volume *vol;
+    size_t v;
+    shared_run *s;
     pthread_t thread;
     int running;         /* a thread was started and not yet joined */
-    int rc;
-    char err[512];
 } writer;
 
+/* A forked worker writes through a descriptor opened now, so that if the parent is stopped by
+ * a signal and removes the temporary file first, the worker's output goes to the removed file
+ * and nothing reappears in the directory. */
 static void *write_volume(void *arg)
 {
     writer *w = arg;
-    w->rc = tw_label_doc_write(w->doc, w->vol->tmp, w->vol->path, w->err, sizeof w->err);
+    char err[512], via[64];
+    const char *path = w->vol->tmp;
+    int fd = -1;
+    if (w->s->in_child) {
+        fd = open(w->vol->tmp, O_WRONLY | O_CLOEXEC);
+        if (fd < 0) {
+            snprintf(err, sizeof err, "%s: cannot write: %s", w->vol->path, strerror(errno));
+            volume_failed(w->s, w->v, TW_EXIT_IO, err);
+            goto out;
+        }
+        snprintf(via, sizeof via, "/proc/self/fd/%d", fd);
+        if (access(via, W_OK) == 0)
+            path = via;
+    }
+    if (tw_label_doc_write(w->doc, path, w->vol->path, err, sizeof err) != 0)
+        volume_failed(w->s, w->v, TW_EXIT_IO, err);
+    else
+        w->s->state[w->v] = VOL_DONE;
+out:
+    if (fd >= 0)
+        close(fd);
     tw_label_doc_free(w->doc); /* the memory goes back while the next volume is drawn */
     w->doc = NULL;
     return NULL;
 }
 
-/* Wait for the volume being written, if any. 0, or -1 with its message in err. */
-static int writer_join(writer *w, char *err, size_t errlen)
+static void writer_join(writer *w)
 {
     if (!w->running)
-        return 0;
+        return;
     pthread_join(w->thread, NULL);
     w->running = 0;
-    if (w->rc != 0) {
-        snprintf(err, errlen, "%s", w->err);
-        return -1;
-    }
-    return 0;
 }
 
 /* Write doc on a new thread (or here, if none can be started). Takes doc. */
-static int writer_start(writer *w, tw_label_doc *doc, volume *vol, char *err, size_t errlen)
+static void writer_start(writer *w, tw_label_doc *doc, volume *vol, size_t v, shared_run *s)
 {
     w->doc = doc;
     w->vol = vol;
-    w->rc = 0;
-    if (pthread_create(&w->thread, NULL, write_volume, w) == 0) {
+    w->v = v;
+    w->s = s;
+    if (pthread_create(&w->thread, NULL, write_volume, w) == 0)
         w->running = 1;
-        return 0;
-    }
-    write_volume(w);
-    if (w->rc != 0)
-        snprintf(err, errlen, "%s", w->err);
-    return w->rc;
+    else
+        write_volume(w);
 }
 
 static void volumes_remove(volume *v, size_t n)
@@ -232,10 +334,11 @@ static void volumes_remove(volume *v, size_t n)
 
 typedef struct {
     char **payloads;
-    int *pages;          /* page within its volume */
+    int *pages;          /* page within its volume (points into the shared run) */
     size_t per_volume;
     volume *vols;
     size_t nvols;
+    int jobs;            /* worker processes; 1 draws here */
 } placed;
 
 static void placed_free(placed *p, size_t n)
@@ -243,7 +346,6 @@ static void placed_free(placed *p, size_t n)
     for (size_t i = 0; p->payloads && i < n; i++)
         free(p->payloads[i]);
     free(p->payloads);
-    free(p->pages);
     volumes_remove(p->vols, p->nvols);
 }
 
@@ -265,7 +367,9 @@ static int make_payloads(const tw_label *labels, size_t n, const tw_manifest *m,
     return TW_EXIT_OK;
 }
 
-/* One file when everything fits one volume, else NAME-001.pdf, NAME-002.pdf, ... */
+/* One file when everything fits one volume, else NAME-001.pdf, NAME-002.pdf, ... Every volume's
+ * temporary file is made here, before any worker starts, so this process can remove them all
+ * on failure or on a signal. */
 static int plan_volumes(size_t n, const tw_print_opts *o, size_t size, placed *p, char *err,
                         size_t errlen)
 {
@@ -290,63 +394,155 @@ static int plan_volumes(size_t n, const tw_print_opts *o, size_t size, placed *p
         if (!p->vols[v].path)
             goto oom;
     }
+    for (size_t v = 0; v < p->nvols; v++)
+        if (!(p->vols[v].tmp = tw_atomic_tmp_path(p->vols[v].path, err, errlen)))
+            return TW_EXIT_IO;
     return TW_EXIT_OK;
 oom:
     snprintf(err, errlen, "out of memory");
     return TW_EXIT_IO;
 }
 
-/* Draw the labels of volume v into doc. */
+/* Draw the labels of volume v into doc. -1 when a lower volume failed meanwhile (this one is
+ * then left unfinished). */
 static int draw_volume(tw_label_doc *doc, const tw_label *labels, size_t n, size_t v,
-                       qr_pipe *q, placed *p, char *err, size_t errlen)
+                       qr_pipe *q, placed *p, shared_run *s, char *err, size_t errlen)
 {
     size_t first = v * p->per_volume, end = first + p->per_volume < n ? first + p->per_volume : n;
     for (size_t i = first; i < end; i++) {
+        if (lower_failed(s, v))
+            return -1;
         tw_qr own = {0};
-        const tw_qr *code = qr_pipe_get(q, i, &own);
-        p->pages[i] = tw_label_doc_add_encoded(doc, &labels[i], p->payloads[i], code, err,
+        const tw_qr *code = qr_pipe_get(q, i - first, &own);
+        s->pages[i] = tw_label_doc_add_encoded(doc, &labels[i], p->payloads[i], code, err,
                                                errlen);
-        qr_pipe_done(q, i, &own);
-        if (p->pages[i] < 0)
+        qr_pipe_done(q, i - first, &own);
+        if (s->pages[i] < 0)
             return TW_EXIT_DATA;
     }
     return TW_EXIT_OK;
 }
 
-/* Every volume written to its temporary file; none published yet. */
-static int write_volumes(const tw_label *labels, size_t n, const tw_print_opts *o, placed *p,
-                         char *err, size_t errlen)
+/* Take volumes in order until none is left or a lower one failed: draw each here, write it on
+ * a thread while the next one is drawn. Results go to s. */
+static void work_volumes(const tw_label *labels, size_t n, const tw_print_opts *o, placed *p,
+                         shared_run *s, int qr_threads)
 {
-    qr_pipe q;
     writer w = {0};
-    int rc = TW_EXIT_OK;
-    qr_pipe_start(&q, p->payloads, n);
-    for (size_t v = 0; v < p->nvols && rc == TW_EXIT_OK; v++) {
-        tw_label_doc *doc = tw_label_doc_new(o->layout, o->site, o->print_date, err, errlen);
+    char err[512];
+    for (;;) {
+        size_t v = atomic_fetch_add(&s->prog->next, 1);
+        if (v >= p->nvols || lower_failed(s, v))
+            break;
+        tw_label_doc *doc = tw_label_doc_new(o->layout, o->site, o->print_date, err, sizeof err);
         if (!doc) {
-            rc = TW_EXIT_IO;
+            volume_failed(s, v, TW_EXIT_IO, err);
             break;
         }
-        rc = draw_volume(doc, labels, n, v, &q, p, err, errlen);
-        if (rc == TW_EXIT_OK && !(p->vols[v].tmp = tw_atomic_tmp_path(p->vols[v].path, err,
-                                                                        errlen)))
-            rc = TW_EXIT_IO;
-        if (rc == TW_EXIT_OK && writer_join(&w, err, errlen) != 0)
-            rc = TW_EXIT_IO;
+        size_t first = v * p->per_volume;
+        size_t count = first + p->per_volume < n ? p->per_volume : n - first;
+        qr_pipe q;
+        qr_pipe_start(&q, p->payloads + first, count, qr_threads);
+        int rc = draw_volume(doc, labels, n, v, &q, p, s, err, sizeof err);
+        qr_pipe_stop(&q);
+        writer_join(&w);
         if (rc != TW_EXIT_OK) {
+            if (rc > 0)
+                volume_failed(s, v, rc, err);
             tw_label_doc_free(doc);
             break;
         }
-        if (writer_start(&w, doc, &p->vols[v], err, errlen) != 0)
-            rc = TW_EXIT_IO;
+        writer_start(&w, doc, &p->vols[v], v, s);
     }
-    qr_pipe_stop(&q);
-    char later[512];
-    if (writer_join(&w, later, sizeof later) != 0 && rc == TW_EXIT_OK) {
-        snprintf(err, errlen, "%s", later);
-        rc = TW_EXIT_IO;
+    writer_join(&w);
+}
+
+/* A worker process: the parent removes the temporary files on a signal and on failure, so
+ * signals end a worker without cleanup of its own, and a worker whose parent is gone ends. */
+static void worker_process(const tw_label *labels, size_t n, const tw_print_opts *o, placed *p,
+                           shared_run *s, int qr_threads, pid_t parent)
+{
+    signal(SIGINT, SIG_DFL);
+    signal(SIGTERM, SIG_DFL);
+    signal(SIGHUP, SIG_DFL);
+#ifdef __linux__
+    prctl(PR_SET_PDEATHSIG, SIGKILL);
+#endif
+    if (getppid() != parent)
+        _exit(TW_EXIT_IO);
+    s->in_child = 1;
+    work_volumes(labels, n, o, p, s, qr_threads);
+    _exit(0);
+}
+
+/* Worker processes: as asked, else one per processor, at most MAX_JOBS; never more than there
+ * are volumes. */
+static int worker_count(int jobs, size_t nvols)
+{
+    long cpus = sysconf(_SC_NPROCESSORS_ONLN);
+    int want = jobs > 0 ? jobs : cpus > MAX_JOBS ? MAX_JOBS : cpus > 1 ? (int)cpus : 1;
+    return (size_t)want > nvols ? (int)nvols : want;
+}
+
+/* Start the workers and wait for all of them. 0, or -1 with a message when a worker could not
+ * be started or ended abnormally. */
+static int run_workers(const tw_label *labels, size_t n, const tw_print_opts *o, placed *p,
+                       shared_run *s, int workers, char *err, size_t errlen)
+{
+    long cpus = sysconf(_SC_NPROCESSORS_ONLN);
+    int qr_threads = cpus > workers ? (int)(cpus / workers) : 1;
+    pid_t parent = getpid(), pids[MAX_JOBS];
+    int started = 0, bad = 0;
+    fflush(NULL);
+    for (; started < workers; started++) {
+        pid_t pid = fork();
+        if (pid == 0)
+            worker_process(labels, n, o, p, s, qr_threads, parent);
+        if (pid < 0) {
+            snprintf(err, errlen, "cannot start a worker process: %s", strerror(errno));
+            atomic_store(&s->prog->failed_min, 0); /* the others stop */
+            bad = 1;
+            break;
+        }
+        pids[started] = pid;
     }
-    return rc;
+    for (int i = 0; i < started; i++) {
+        int status;
+        while (waitpid(pids[i], &status, 0) < 0 && errno == EINTR)
+            ;
+        if (!bad && !(WIFEXITED(status) && WEXITSTATUS(status) == 0)) {
+            if (WIFSIGNALED(status))
+                snprintf(err, errlen, "a worker process drawing the labels was ended by signal "
+                         "%d", WTERMSIG(status));
+            else
+                snprintf(err, errlen, "a worker process drawing the labels failed");
+            bad = 1;
+        }
+    }
+    return bad ? -1 : 0;
+}
+
+/* Every volume written to its temporary file; none published yet. */
+static int write_volumes(const tw_label *labels, size_t n, const tw_print_opts *o, placed *p,
+                         shared_run *s, char *err, size_t errlen)
+{
+    int workers = worker_count(p->jobs, p->nvols);
+    long cpus = sysconf(_SC_NPROCESSORS_ONLN);
+    if (workers <= 1)
+        work_volumes(labels, n, o, p, s, cpus > QR_MAX_THREADS ? QR_MAX_THREADS : (int)cpus);
+    else if (run_workers(labels, n, o, p, s, workers, err, errlen) != 0)
+        return TW_EXIT_IO;
+    for (size_t v = 0; v < p->nvols; v++) {
+        if (s->state[v] == VOL_FAILED) { /* the first failure, as one worker would report it */
+            snprintf(err, errlen, "%s", s->err[v]);
+            return s->rc[v];
+        }
+        if (s->state[v] != VOL_DONE) {
+            snprintf(err, errlen, "%s: not written", p->vols[v].path);
+            return TW_EXIT_IO;
+        }
+    }
+    return TW_EXIT_OK;
 }
 
 /* Rename every volume into place, in order, then the manifest, once all are written in full:
@@ -412,15 +608,22 @@ int tw_print_labels(const tw_label *labels, size_t n, const tw_print_opts *o, ch
 int tw_print_labels_in_volumes(const tw_label *labels, size_t n, const tw_print_opts *o,
                                size_t volume_size, char *err, size_t errlen)
 {
+    return tw_print_labels_jobs(labels, n, o, volume_size, 0, err, errlen);
+}
+
+int tw_print_labels_jobs(const tw_label *labels, size_t n, const tw_print_opts *o,
+                         size_t volume_size, int jobs, char *err, size_t errlen)
+{
     char *mpath = o->manifest_path ? tw_strdup(o->manifest_path) : tw_manifest_path_for(o->out_pdf);
-    placed p = {calloc(n ? n : 1, sizeof(char *)), calloc(n ? n : 1, sizeof(int)), 0, NULL, 0};
+    placed p = {calloc(n ? n : 1, sizeof(char *)), NULL, 0, NULL, 0, jobs};
+    shared_run s = {0};
     tw_manifest m;
     tw_atomic manifest_out;
     memset(&manifest_out, 0, sizeof manifest_out);
     tw_diags md;
     tw_diags_init(&md);
     int rc = TW_EXIT_IO;
-    if (!mpath || !p.payloads || !p.pages) {
+    if (!mpath || !p.payloads) {
         snprintf(err, errlen, "out of memory");
         goto done_nomanifest;
     }
@@ -442,10 +645,15 @@ int tw_print_labels_in_volumes(const tw_label *labels, size_t n, const tw_print_
         goto done_nomanifest;
     }
     rc = plan_volumes(n, o, volume_size, &p, err, errlen);
+    if (rc == TW_EXIT_OK && shared_open(&s, n, p.nvols) != 0) {
+        snprintf(err, errlen, "out of memory");
+        rc = TW_EXIT_IO;
+    }
+    p.pages = s.pages;
     if (rc == TW_EXIT_OK)
         rc = make_payloads(labels, n, &m, o, &p, err, errlen);
     if (rc == TW_EXIT_OK)
-        rc = write_volumes(labels, n, o, &p, err, errlen);
+        rc = write_volumes(labels, n, o, &p, &s, err, errlen);
     if (rc == TW_EXIT_OK)
         rc = record_all(&m, labels, n, o, &p, &manifest_out, err, errlen);
     if (rc == TW_EXIT_OK)
@@ -454,6 +662,7 @@ int tw_print_labels_in_volumes(const tw_label *labels, size_t n, const tw_print_
     tw_manifest_close(&m);
 done_nomanifest:
     placed_free(&p, n);
+    shared_close(&s, n);
     free(mpath);
     tw_diags_free(&md);
     return rc;

@@ -154,7 +154,11 @@ int tw_qr_encode(const char *payload, tw_qr *out)
     size_t len = strlen(payload);
     if (len > INT_MAX)
         return -1;
-    QRcode *code = QRcode_encodeData((int)len, (const unsigned char *)payload, 0, QR_ECLEVEL_M);
+    /* The payload as a string in 8-bit mode, with runs of digits or of upper-case letters and
+     * digits in the numeric and alphanumeric modes wherever libqrencode finds that shorter: the
+     * same bytes decode, often in a smaller symbol, and the cost of choosing the mask (most of
+     * the encoding time) grows with the symbol's area. */
+    QRcode *code = QRcode_encodeString(payload, 0, QR_ECLEVEL_M, QR_MODE_8, 1);
     if (!code)
         return -1;
     size_t n = (size_t)code->width * (size_t)code->width;

@@ -1,6 +1,7 @@
 # t_determinism.sh - the same input and --date give the same bytes (PDFs and manifests), and a
 # run split into volumes writes the expected files, records each label's volume and page, and
-# leaves nothing behind when a later volume fails. Checked with qpdf --check, pdfinfo and
+# leaves nothing behind when a later volume fails; volumes drawn by several worker processes
+# are the same bytes as those drawn by one. Checked with qpdf --check, pdfinfo and
 # zbarimg (decoding the QR of a page in the second volume).
 source "$(dirname "$0")/lib.sh"
 small="$TW_DATA/core/small.csv"   # 4 buses, 5 scenario rows
@@ -68,6 +69,37 @@ check "no volume left behind by a failed run" test -z "$(find "$TW_TMP/fail" -na
 check "no temporary file left behind by a failed run" \
     test -z "$(find "$TW_TMP/fail" -name '.*' -type f ! -name '*.lock')"
 check "no manifest written by a failed run" test ! -e "$TW_TMP/fail/labels.manifest.json"
+
+# Volumes drawn by several worker processes: the same bytes as one process.
+mkdir -p "$TW_TMP/j1" "$TW_TMP/j3"
+run labels "$small" --out "$TW_TMP/j1/labels.pdf" --volume-size 1 --jobs 1 --date 2026-12-01
+expect_rc 0 "4 volumes drawn by one process"
+run labels "$small" --out "$TW_TMP/j3/labels.pdf" --volume-size 1 --jobs 3 --date 2026-12-01
+expect_rc 0 "4 volumes drawn by three worker processes"
+for v in 001 002 003 004; do
+    check "volume $v: the same bytes with --jobs 3 as with --jobs 1" \
+        cmp "$TW_TMP/j1/labels-$v.pdf" "$TW_TMP/j3/labels-$v.pdf"
+done
+check "the manifest: the same bytes with --jobs 3 as with --jobs 1" \
+    cmp "$TW_TMP/j1/labels.manifest.json" "$TW_TMP/j3/labels.manifest.json"
+check "no temporary files left by the workers" \
+    test -z "$(find "$TW_TMP/j3" -name '.*' -type f ! -name '*.lock')"
+
+# A worker whose volume fails: the run fails with that label's message, nothing is published.
+mkdir -p "$TW_TMP/jfail"
+run labels "$TW_TMP/late-fail.csv" --out "$TW_TMP/jfail/labels.pdf" --volume-size 1 --jobs 3 \
+    --date 2026-12-01
+expect_rc 1 "a failing worker fails the run"
+contains "$ERR" "E2E-SWGR-1" "the label that failed is named, as with one process"
+check "no volume published when a worker fails" test -z "$(find "$TW_TMP/jfail" -name '*.pdf')"
+check "no temporary file left when a worker fails" \
+    test -z "$(find "$TW_TMP/jfail" -name '.*' -type f ! -name '*.lock')"
+check "no manifest written when a worker fails" test ! -e "$TW_TMP/jfail/labels.manifest.json"
+
+for bad in 0 -1 65 two; do
+    run labels "$small" --out "$TW_TMP/bad.pdf" --jobs "$bad"
+    expect_rc 2 "--jobs $bad is a usage error"
+done
 
 # --volume-size is checked as it is parsed.
 for bad in 0 -3 abc 30001 12x; do

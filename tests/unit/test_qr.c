@@ -58,7 +58,7 @@ static void payload_should_use_the_default_link_without_a_template(void **state)
     (void)state;
     char *p = tw_qr_payload(NULL, "ST-1", "MCC-3", 4, HASH);
     assert_non_null(p);
-    assert_string_equal(p, "https://records.invalid/study/ST-1/MCC-3?rev=4&sha256=" HASH);
+    assert_string_equal(p, "https://records.invalid/ST-1/MCC-3/4#" HASH);
     free(p);
 }
 
@@ -101,16 +101,41 @@ static void encode_should_pick_the_smallest_version_at_level_m(void **state)
     assert_int_equal(tw_qr_encode("tagwright-abcde", &q), 0); /* 15 bytes */
     assert_int_equal(q.width, 25);
     tw_qr_free(&q);
-    char *p = tw_qr_payload(NULL, "ST-1", "MCC-3", 1, HASH); /* 118 bytes */
-    assert_int_equal(strlen(p), 118);
-    assert_int_equal(tw_qr_encode(p, &q), 0);
+    char text[124];
+    memset(text, 'q', sizeof text - 1); /* lower-case letters: byte mode is the only choice */
+    text[122] = '\0';
+    assert_int_equal(tw_qr_encode(text, &q), 0); /* 122 bytes */
     assert_int_equal(q.width, 45); /* version 7 */
-    free(p);
     tw_qr_free(&q);
-    p = tw_qr_payload(NULL, "ST-2024-07", "MCC-3", 1, HASH); /* 124 bytes */
-    assert_int_equal(strlen(p), 124);
+    text[122] = 'q';
+    text[123] = '\0';
+    assert_int_equal(tw_qr_encode(text, &q), 0); /* 123 bytes */
+    assert_int_equal(q.width, 49); /* version 8 */
+    tw_qr_free(&q);
+}
+
+/* Runs of digits or upper-case letters go in the numeric and alphanumeric modes when that is
+ * shorter (ISO/IEC 18004: 10 bits per 3 digits, 11 bits per 2 characters, against 8 bits per
+ * byte; from memory, verify against the standard): 122 such characters need a smaller symbol
+ * than the version 7 that 122 bytes take. */
+static void encode_should_use_the_shorter_modes_for_digits_and_capitals(void **state)
+{
+    (void)state;
+    tw_qr q;
+    char text[123];
+    memset(text, '7', sizeof text - 1);
+    text[122] = '\0';
+    assert_int_equal(tw_qr_encode(text, &q), 0);
+    assert_true(q.width < 45);
+    tw_qr_free(&q);
+    memset(text, 'Q', sizeof text - 1);
+    assert_int_equal(tw_qr_encode(text, &q), 0);
+    assert_true(q.width < 45);
+    tw_qr_free(&q);
+    char *p = tw_qr_payload(NULL, "ST-2024-07", "MCC-3", 1, HASH); /* the default link */
+    assert_int_equal(strlen(p), 107);
     assert_int_equal(tw_qr_encode(p, &q), 0);
-    assert_int_equal(q.width, 49);
+    assert_true(q.width <= 45); /* version 7 at most; the former link made version 8 */
     free(p);
     tw_qr_free(&q);
 }
@@ -162,6 +187,7 @@ int main(void)
         cmocka_unit_test(payload_hash_should_be_found_in_a_payload),
         cmocka_unit_test(payload_hash_should_ignore_runs_that_are_not_64_digits),
         cmocka_unit_test(encode_should_pick_the_smallest_version_at_level_m),
+        cmocka_unit_test(encode_should_use_the_shorter_modes_for_digits_and_capitals),
         cmocka_unit_test(encode_should_mark_the_finder_patterns_dark),
         cmocka_unit_test(encode_should_refuse_empty_and_oversized_payloads),
     };
