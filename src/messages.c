@@ -6,31 +6,9 @@
 #include <stdlib.h>
 #include <string.h>
 
+/* Names of the fixed texts after the label fields; a label field's message is named by its
+ * canonical key (tw_label_key_name), so the two lists cannot drift apart. */
 static const char *const names[TW_M_COUNT] = {
-    [TW_L_SIGNAL_WORD] = "signal_word",
-    [TW_L_EQUIPMENT_ID] = "equipment_id",
-    [TW_L_DESCRIPTION] = "description",
-    [TW_L_LOCATION] = "location",
-    [TW_L_NOMINAL_VOLTAGE] = "nominal_voltage",
-    [TW_L_ARC_FLASH_BOUNDARY] = "arc_flash_boundary",
-    [TW_L_BOUNDARY_NOTE] = "boundary_note",
-    [TW_L_INCIDENT_ENERGY] = "incident_energy",
-    [TW_L_WORKING_DISTANCE] = "working_distance",
-    [TW_L_PPE_CATEGORY] = "ppe_category",
-    [TW_L_MIN_ARC_RATING] = "min_arc_rating",
-    [TW_L_PPE_LEVEL] = "ppe_level",
-    [TW_L_NO_PPE_ADEQUATE] = "no_ppe_adequate",
-    [TW_L_LIMITED_APPROACH] = "limited_approach",
-    [TW_L_RESTRICTED_APPROACH] = "restricted_approach",
-    [TW_L_GLOVE_CLASS] = "glove_class",
-    [TW_L_AVAILABLE_FAULT] = "available_fault",
-    [TW_L_SERVICE_CLEARING_TIME] = "service_clearing_time",
-    [TW_L_SERVICE_LABEL_DATE] = "service_label_date",
-    [TW_L_STUDY_ID] = "study_id",
-    [TW_L_STUDY_DATE] = "study_date",
-    [TW_L_SCENARIO] = "scenario",
-    [TW_L_REVIEW_DUE] = "review_due",
-    [TW_L_REVISION_NOTE] = "revision_note",
     [TW_M_TITLE_ARC_FLASH] = "title_arc_flash",
     [TW_M_TITLE_SHOCK] = "title_shock",
     [TW_M_TITLE_SERVICE] = "title_service",
@@ -209,6 +187,8 @@ const char *tw_msg(tw_lang lang, int id)
 
 const char *tw_msg_name(int id)
 {
+    if (id >= 0 && id < (int)TW_L_COUNT)
+        return tw_label_key_name((tw_label_key)id);
     return id >= 0 && id < TW_M_COUNT ? names[id] : NULL;
 }
 
