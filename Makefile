@@ -85,6 +85,8 @@ install: $(BIN)
 # libFuzzer harnesses (tests/fuzz/fuzz_*.c), built with clang and ASan+UBSan into build-fuzz/,
 # each run for FUZZ_SECONDS on a working copy of its seed corpus (docs/fuzzing.md).
 FUZZ_SECONDS ?= 10
+FUZZ_JOBS    ?= 1
+FUZZ_RUNS    ?=
 FUZZ_SRC      = $(wildcard tests/fuzz/fuzz_*.c)
 FUZZ_BINS     = $(FUZZ_SRC:tests/fuzz/%.c=$(BUILD)/fuzz/%)
 FUZZ_SAN      = -fsanitize=address,undefined -fno-sanitize-recover=all
@@ -99,7 +101,7 @@ fuzz-build: $(FUZZ_BINS)
 fuzz:
 	$(MAKE) CC=clang BUILD=build-fuzz OPT="-O2 -g -fno-omit-frame-pointer" \
 	  EXTRA_CFLAGS="-fsanitize=fuzzer-no-link $(FUZZ_SAN)" EXTRA_LDFLAGS="$(FUZZ_SAN)" fuzz-build
-	tests/fuzz/run build-fuzz $(FUZZ_SECONDS)
+	FUZZ_JOBS=$(FUZZ_JOBS) FUZZ_RUNS=$(FUZZ_RUNS) tests/fuzz/run build-fuzz $(FUZZ_SECONDS)
 
 # The end-to-end tests with every run of the binary wrapped in valgrind (tests/e2e/lib.sh).
 VALGRIND = valgrind -q --error-exitcode=99 --leak-check=full \
