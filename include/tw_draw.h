@@ -3,13 +3,14 @@
  * summaries), on top of libharu.
  *
  * A tw_pdf_doc is one libharu document with compression on, UTF-8 text, DejaVu Sans and
- * DejaVu Sans Bold embedded once, and PDF dates taken from a given day so that the same input
+ * DejaVu Sans Bold embedded once (twice for a document with text outside WinAnsiEncoding), and PDF dates taken from a given day so that the same input
  * gives the same bytes. libharu errors are recorded in the struct by an error handler (no
  * longjmp); callers check tw_pdf_doc_check() after drawing. The struct must stay at the same
  * address while the document is open (the handler points at it).
  *
- * Measuring functions allocate nothing. Drawing functions take lengths in points in the
- * current user space of the page. Text is UTF-8; a span is a byte range of it.
+ * Measuring ASCII allocates nothing; measuring other text may add the document's UTF-8 font
+ * (tw_font_wide). Drawing functions take lengths in points in the current user space of the
+ * page. Text is UTF-8; a span is a byte range of it.
  */
 #ifndef TW_DRAW_H
 #define TW_DRAW_H
@@ -22,9 +23,26 @@
 #include "tw_qr.h"
 #include "tw_rules.h"
 
+/* One typeface of a document. Text is shown in a single-byte TrueType font (WinAnsiEncoding)
+ * when every character has a code there, as all the fixed English and Spanish text does: one
+ * byte per character in the page stream instead of four hex digits, a third of the bytes to
+ * write and compress. Other text (Greek, CJK, arrows) is shown in the UTF-8 (Identity-H) font
+ * of the same file, which is made only when a document first needs it, since each embeds its
+ * own copy of the glyphs. */
 typedef struct {
     HPDF_Doc pdf;
-    HPDF_Font regular, bold;
+    const char *ttf;            /* libharu's name for the loaded TrueType file */
+    HPDF_Font byte;             /* WinAnsiEncoding */
+    HPDF_Font wide;             /* UTF-8; NULL until tw_font_wide() */
+    unsigned short ascii[95];   /* widths of ' '..'~' in 1/1000 em */
+    const unsigned short *high; /* code points of bytes 0x80..0xFF (the document's table) */
+} tw_font;
+
+typedef struct {
+    HPDF_Doc pdf;
+    tw_font *regular, *bold; /* point into faces */
+    tw_font faces[2];
+    unsigned short high[128];
     unsigned long error, detail; /* first libharu error and its detail, 0 when none */
     int saved;                   /* written at least once (see tw_pdf_doc_close) */
 } tw_pdf_doc;
@@ -74,30 +92,33 @@ typedef struct {
  * characters. Every text drawn must pass this; callers check before planning a page. */
 int tw_text_ok(const char *s);
 
+/* The UTF-8 font of f, made on first use; NULL if libharu fails (its error is recorded). */
+HPDF_Font tw_font_wide(tw_font *f);
+
 /* Width of s[0..len) at size pt, in points. */
-double tw_text_width(HPDF_Font f, double pt, const char *s, size_t len);
+double tw_text_width(tw_font *f, double pt, const char *s, size_t len);
 
 /* Break s into lines no wider than w at size pt: at spaces, at '\n', and inside a word only
  * when the word alone is wider than w (at a UTF-8 character boundary). Fills up to max spans
  * and returns the number of lines needed (which may exceed max). lines may be NULL when max
  * is 0. An empty text needs 1 (empty) line. */
-int tw_wrap(HPDF_Font f, double pt, const char *s, double w, tw_span *lines, int max);
+int tw_wrap(tw_font *f, double pt, const char *s, double w, tw_span *lines, int max);
 
 /* Largest size from start_pt down to min_pt, in 0.5 pt steps, at which s fits in max_lines
  * lines of width w; 0 when it does not fit even at min_pt. */
-double tw_fit_size(HPDF_Font f, const char *s, double w, int max_lines, double start_pt,
+double tw_fit_size(tw_font *f, const char *s, double w, int max_lines, double start_pt,
                    double min_pt);
 
 /* Draw one line (a span of s) with its left edge at x and its baseline at y. */
-void tw_draw_text(HPDF_Page p, HPDF_Font f, double pt, double x, double y, const char *s,
+void tw_draw_text(HPDF_Page p, tw_font *f, double pt, double x, double y, const char *s,
                   size_t len, tw_rgb colour);
 
 /* Draw wrapped lines top-down: the first line's top at top, aligned in [x, x+w]. */
-void tw_draw_lines(HPDF_Page p, HPDF_Font f, double pt, double x, double top, double w,
+void tw_draw_lines(HPDF_Page p, tw_font *f, double pt, double x, double top, double w,
                    const char *s, const tw_span *lines, int n, tw_align a, tw_rgb colour);
 
 /* Distance from the top of a line box to its baseline, for size pt. */
-double tw_baseline_drop(HPDF_Font f, double pt);
+double tw_baseline_drop(tw_font *f, double pt);
 
 /* Module size for a QR symbol of `modules` modules (quiet zone included) in a square of side
  * points: a whole number of printer dots when dpi > 0. 0 when a module would be smaller than
@@ -125,7 +146,7 @@ double tw_draw_hazard_header(HPDF_Page p, const tw_pdf_doc *d, tw_box band, tw_s
                              double min_pt);
 
 /* Large outline text across the area's diagonal (draft watermark). */
-void tw_draw_watermark(HPDF_Page p, HPDF_Font f, tw_box area, const char *text, tw_rgb colour);
+void tw_draw_watermark(HPDF_Page p, tw_font *f, tw_box area, const char *text, tw_rgb colour);
 
 /* A rectangle filled with colour. */
 void tw_draw_fill(HPDF_Page p, tw_box b, tw_rgb colour);

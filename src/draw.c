@@ -65,43 +65,57 @@ int tw_pdf_doc_check(const tw_pdf_doc *d, char *err, size_t errlen)
     return -1;
 }
 
-static HPDF_Font load_font(tw_pdf_doc *d, const char *file, char *err, size_t errlen)
+/* Load one TrueType file and its single-byte (WinAnsiEncoding) font; the UTF-8 font of the same
+ * file is made only when a text needs it (tw_font_wide). Measuring every printable ASCII glyph
+ * here fills f->ascii and also marks those glyphs as used: libharu embeds the glyphs a document
+ * has measured or shown, and marking them all makes the embedded font, and so the bytes, the
+ * same whatever the document holds. */
+static int load_face(tw_pdf_doc *d, tw_font *f, const char *file, char *err, size_t errlen)
 {
     char *path = tw_asprintf("%s/%s", tw_font_dir(), file);
     if (!path) {
         snprintf(err, errlen, "out of memory");
-        return NULL;
+        return -1;
     }
-    HPDF_Font font = NULL;
+    memset(f, 0, sizeof *f);
+    f->pdf = d->pdf;
+    f->high = d->high;
     if (access(path, R_OK) != 0) {
         snprintf(err, errlen,
                  "%s: font not found (install fonts-dejavu-core or set TAGWRIGHT_FONTS to the "
                  "directory holding %s)",
                  path, file);
-    } else {
-        const char *name = HPDF_LoadTTFontFromFile(d->pdf, path, HPDF_TRUE);
-        font = name ? HPDF_GetFont(d->pdf, name, "UTF-8") : NULL;
-        if (!font) {
-            char why[160];
-            tw_pdf_doc_check(d, why, sizeof why);
-            snprintf(err, errlen, "%s: cannot load font: %s", path, d->error ? why : "unknown");
-        }
+        free(path);
+        return -1;
+    }
+    f->ttf = HPDF_LoadTTFontFromFile(d->pdf, path, HPDF_TRUE);
+    f->byte = f->ttf ? HPDF_GetFont(d->pdf, f->ttf, "WinAnsiEncoding") : NULL;
+    for (int ch = ' '; f->byte && ch <= '~'; ch++) {
+        HPDF_BYTE b = (HPDF_BYTE)ch;
+        HPDF_TextWidth tw = HPDF_Font_TextWidth(f->byte, &b, 1);
+        f->ascii[ch - ' '] = tw.width <= 0xFFFF ? (unsigned short)tw.width : 0xFFFF;
+    }
+    if (!f->byte || d->error) {
+        char why[160];
+        tw_pdf_doc_check(d, why, sizeof why);
+        snprintf(err, errlen, "%s: cannot load font: %s", path, d->error ? why : "unknown");
+        free(path);
+        return -1;
     }
     free(path);
-    return font;
+    return 0;
 }
 
-/* libharu embeds the glyphs a document has measured or shown. tw_text_width() measures ASCII
- * from a cache filled by the first document of the thread, so each document marks every
- * printable ASCII glyph itself: the glyphs embedded, and so the bytes, never depend on what
- * an earlier document measured. */
-static void use_printable_ascii(HPDF_Font f)
+/* The code points of bytes 0x80..0xFF in libharu's WinAnsiEncoding, from libharu itself, so
+ * that what tw_draw_text converts to is what the viewer decodes. */
+static int load_high_codes(tw_pdf_doc *d)
 {
-    char ascii[96];
-    for (int c = ' '; c <= '~'; c++)
-        ascii[c - ' '] = (char)c;
-    ascii[95] = '\0';
-    HPDF_Font_TextWidth(f, (const HPDF_BYTE *)ascii, 95);
+    HPDF_Encoder e = HPDF_GetEncoder(d->pdf, "WinAnsiEncoding");
+    if (!e)
+        return -1;
+    for (int c = 0x80; c <= 0xFF; c++)
+        d->high[c - 0x80] = HPDF_Encoder_GetUnicode(e, (HPDF_UINT16)c);
+    return 0;
 }
 
 static int set_dates(tw_pdf_doc *d, const char *creation_date, char *err, size_t errlen)
@@ -130,12 +144,17 @@ int tw_pdf_doc_open(tw_pdf_doc *d, const char *creation_date, char *err, size_t 
     HPDF_SetCompressionMode(d->pdf, HPDF_COMP_ALL);
     HPDF_UseUTFEncodings(d->pdf);
     HPDF_SetCurrentEncoder(d->pdf, "UTF-8");
-    if (set_dates(d, creation_date, err, errlen) != 0 ||
-        !(d->regular = load_font(d, TW_FONT_REGULAR, err, errlen)) ||
-        !(d->bold = load_font(d, TW_FONT_BOLD, err, errlen)))
+    d->regular = &d->faces[0];
+    d->bold = &d->faces[1];
+    if (set_dates(d, creation_date, err, errlen) != 0)
         goto fail;
-    use_printable_ascii(d->regular);
-    use_printable_ascii(d->bold);
+    if (load_high_codes(d) != 0) {
+        snprintf(err, errlen, "libharu has no WinAnsiEncoding");
+        goto fail;
+    }
+    if (load_face(d, d->regular, TW_FONT_REGULAR, err, errlen) != 0 ||
+        load_face(d, d->bold, TW_FONT_BOLD, err, errlen) != 0)
+        goto fail;
     if (tw_pdf_doc_check(d, err, errlen) != 0)
         goto fail;
     return 0;
@@ -225,63 +244,108 @@ int tw_text_ok(const char *s)
     return 1;
 }
 
-/* Glyph widths of printable ASCII for the fonts measured last, by font name: every label
- * measures its text many times while fitting it, and HPDF_Font_TextWidth decodes and looks up
- * each character afresh. HPDF_Font_TextWidth's width is the plain sum of glyph widths (no
- * kerning), so summing cached widths gives the same number. Keyed by name, not by handle: a
- * handle is per document and its address may be reused by another font. One cache per thread. */
-#define WIDTH_CACHE_FONTS 4
-typedef struct {
-    char name[64];
-    unsigned short w[95]; /* ' ' .. '~', in 1/1000 em */
-} ascii_widths;
-
-static _Thread_local ascii_widths width_cache[WIDTH_CACHE_FONTS];
-static _Thread_local int width_cache_next;
-
-static const ascii_widths *widths_for(HPDF_Font f)
+/* UTF-8 decoding for text that tw_text_ok() accepted; a malformed byte decodes as 0xFFFD. */
+static size_t utf8_decode(const unsigned char *s, size_t avail, unsigned long *cp)
 {
-    const char *name = HPDF_Font_GetFontName(f);
-    if (!name || strlen(name) >= sizeof width_cache[0].name)
-        return NULL;
-    for (int i = 0; i < WIDTH_CACHE_FONTS; i++)
-        if (!strcmp(width_cache[i].name, name))
-            return &width_cache[i];
-    ascii_widths *c = &width_cache[width_cache_next];
-    for (int ch = ' '; ch <= '~'; ch++) {
-        HPDF_BYTE b = (HPDF_BYTE)ch;
-        HPDF_TextWidth tw = HPDF_Font_TextWidth(f, &b, 1);
-        if (tw.width > 0xFFFF)
-            return NULL;
-        c->w[ch - ' '] = (unsigned short)tw.width;
+    unsigned char c = s[0];
+    size_t n = c < 0x80 ? 1 : (c >> 5) == 6 ? 2 : (c >> 4) == 14 ? 3 : (c >> 3) == 30 ? 4 : 0;
+    if (n == 0 || n > avail) {
+        *cp = 0xFFFD;
+        return 1;
     }
-    snprintf(c->name, sizeof c->name, "%s", name);
-    width_cache_next = (width_cache_next + 1) % WIDTH_CACHE_FONTS;
-    return c;
+    unsigned long v = n == 1 ? c : c & (0x7F >> n);
+    for (size_t i = 1; i < n; i++) {
+        if ((s[i] & 0xC0) != 0x80) {
+            *cp = 0xFFFD;
+            return 1;
+        }
+        v = v << 6 | (s[i] & 0x3F);
+    }
+    *cp = v;
+    return n;
 }
 
-double tw_text_width(HPDF_Font f, double pt, const char *s, size_t len)
+/* s[0..len) in WinAnsiEncoding into out (at least len bytes): the number of bytes written, or
+ * -1 when a character has no code there (or is a control character). */
+static long to_winansi(const tw_font *f, const char *s, size_t len, char *out)
 {
-    if (len == 0)
-        return 0;
-    const ascii_widths *c = widths_for(f);
+    const unsigned char *u = (const unsigned char *)s;
+    size_t i = 0, n = 0;
+    while (i < len) {
+        if (u[i] >= ' ' && u[i] <= '~') {
+            out[n++] = (char)u[i++];
+            continue;
+        }
+        unsigned long cp;
+        i += utf8_decode(u + i, len - i, &cp);
+        int code = -1; /* control characters (C0, DEL, C1) have none */
+        for (int c = 0; cp >= 0xA0 && c < 128 && code < 0; c++)
+            if (f->high[c] == cp)
+                code = 0x80 + c;
+        if (code < 0)
+            return -1;
+        out[n++] = (char)code;
+    }
+    return (long)n;
+}
+
+HPDF_Font tw_font_wide(tw_font *f)
+{
+    if (!f->wide && f->ttf)
+        f->wide = HPDF_GetFont(f->pdf, f->ttf, "UTF-8");
+    return f->wide;
+}
+
+/* The bytes to show for s[0..len) and the font to show them in: the single-byte font when every
+ * character has a WinAnsiEncoding code (all of the fixed English and Spanish text), else the
+ * UTF-8 font with the text as it is. out holds at least len + 1 bytes; NULL when the UTF-8 font
+ * cannot be made (libharu's error is recorded in the document). */
+static HPDF_Font font_for(tw_font *f, const char *s, size_t len, char *out)
+{
+    long n = to_winansi(f, s, len, out);
+    if (n >= 0) {
+        out[n] = '\0';
+        return f->byte;
+    }
+    memcpy(out, s, len);
+    out[len] = '\0';
+    return tw_font_wide(f);
+}
+
+double tw_text_width(tw_font *f, double pt, const char *s, size_t len)
+{
     unsigned long sum = 0;
     size_t i = 0;
-    for (; c && i < len; i++) {
+    for (; i < len; i++) {
         unsigned char ch = (unsigned char)s[i];
         if (ch < ' ' || ch > '~')
             break;
-        sum += c->w[ch - ' '];
+        sum += f->ascii[ch - ' '];
     }
-    if (c && i == len)
+    if (i == len)
         return (double)sum * pt / 1000.0;
-    HPDF_TextWidth tw = HPDF_Font_TextWidth(f, (const HPDF_BYTE *)s, (HPDF_UINT)len);
-    return tw.width * pt / 1000.0;
+    /* Other text: libharu's own measure, in the font that will show it (the glyph widths are
+     * the same in both; the sum of glyph widths is all HPDF_Font_TextWidth adds). */
+    char small[256];
+    char *buf = len < sizeof small ? small : malloc(len + 1);
+    if (!buf)
+        return 0;
+    HPDF_Font use = font_for(f, s, len, buf);
+    double w = 0;
+    if (use) {
+        HPDF_TextWidth tw = HPDF_Font_TextWidth(use, (const HPDF_BYTE *)buf,
+                                                (HPDF_UINT)strlen(buf));
+        w = tw.width * pt / 1000.0;
+    }
+    if (buf != small)
+        free(buf);
+    return w;
 }
 
-double tw_baseline_drop(HPDF_Font f, double pt)
+double tw_baseline_drop(tw_font *f, double pt)
 {
-    double asc = HPDF_Font_GetAscent(f) / 1000.0, desc = HPDF_Font_GetDescent(f) / 1000.0;
+    double asc = HPDF_Font_GetAscent(f->byte) / 1000.0;
+    double desc = HPDF_Font_GetDescent(f->byte) / 1000.0;
     double extra = TW_LEADING - (asc - desc);
     return (extra > 0 ? extra / 2 : 0) * pt + asc * pt;
 }
@@ -295,7 +359,7 @@ static size_t utf8_len(const char *s, size_t avail)
 }
 
 typedef struct {
-    HPDF_Font f;
+    tw_font *f;
     double pt, w;
     tw_span *lines;
     int max, n;
@@ -356,7 +420,7 @@ static void add_word(wrapper *wr, const char *s, size_t space_at, size_t a, size
     }
 }
 
-int tw_wrap(HPDF_Font f, double pt, const char *s, double w, tw_span *lines, int max)
+int tw_wrap(tw_font *f, double pt, const char *s, double w, tw_span *lines, int max)
 {
     wrapper wr = {f, pt, w, lines, max, 0, 0, 0, 0, 0};
     size_t len = strlen(s), i = 0;
@@ -389,7 +453,7 @@ int tw_wrap(HPDF_Font f, double pt, const char *s, double w, tw_span *lines, int
     return wr.n;
 }
 
-double tw_fit_size(HPDF_Font f, const char *s, double w, int max_lines, double start_pt,
+double tw_fit_size(tw_font *f, const char *s, double w, int max_lines, double start_pt,
                    double min_pt)
 {
     for (double pt = start_pt; pt >= min_pt - 1e-9; pt -= 0.5)
@@ -430,7 +494,7 @@ static void set_font(HPDF_Page p, HPDF_Font f, double pt)
     HPDF_Page_SetFontAndSize(p, f, (HPDF_REAL)pt);
 }
 
-void tw_draw_text(HPDF_Page p, HPDF_Font f, double pt, double x, double y, const char *s,
+void tw_draw_text(HPDF_Page p, tw_font *f, double pt, double x, double y, const char *s,
                   size_t len, tw_rgb colour)
 {
     if (len == 0)
@@ -439,18 +503,19 @@ void tw_draw_text(HPDF_Page p, HPDF_Font f, double pt, double x, double y, const
     char *text = len < sizeof small ? small : malloc(len + 1);
     if (!text)
         return; /* out of memory: the caller's document check reports nothing drawn */
-    memcpy(text, s, len);
-    text[len] = '\0';
-    set_fill(p, colour);
-    HPDF_Page_BeginText(p);
-    set_font(p, f, pt);
-    HPDF_Page_TextOut(p, (HPDF_REAL)x, (HPDF_REAL)y, text);
-    HPDF_Page_EndText(p);
+    HPDF_Font use = font_for(f, s, len, text);
+    if (use) {
+        set_fill(p, colour);
+        HPDF_Page_BeginText(p);
+        set_font(p, use, pt);
+        HPDF_Page_TextOut(p, (HPDF_REAL)x, (HPDF_REAL)y, text);
+        HPDF_Page_EndText(p);
+    }
     if (text != small)
         free(text);
 }
 
-void tw_draw_lines(HPDF_Page p, HPDF_Font f, double pt, double x, double top, double w,
+void tw_draw_lines(HPDF_Page p, tw_font *f, double pt, double x, double top, double w,
                    const char *s, const tw_span *lines, int n, tw_align a, tw_rgb colour)
 {
     double y = top - tw_baseline_drop(f, pt);
@@ -593,7 +658,7 @@ typedef struct {
 static int fit_header(const tw_pdf_doc *d, tw_box band, const char *word, const char *tag,
                       double pt, header_fit *h)
 {
-    const double cap_ratio = HPDF_Font_GetCapHeight(d->bold) / 1000.0;
+    const double cap_ratio = HPDF_Font_GetCapHeight(d->bold->byte) / 1000.0;
     h->pt = pt;
     h->cap = cap_ratio * pt;
     /* ANSI Z535.4: the symbol is at least as tall as the signal word's letters (from memory,
@@ -645,15 +710,21 @@ double tw_draw_hazard_header(HPDF_Page p, const tw_pdf_doc *d, tw_box band, tw_s
 
 /* ---- watermark ---------------------------------------------------------------------------- */
 
-void tw_draw_watermark(HPDF_Page p, HPDF_Font f, tw_box area, const char *text, tw_rgb colour)
+void tw_draw_watermark(HPDF_Page p, tw_font *f, tw_box area, const char *words, tw_rgb colour)
 {
-    size_t len = strlen(text);
-    double unit = tw_text_width(f, 1, text, len);
+    size_t len = strlen(words);
+    double unit = tw_text_width(f, 1, words, len);
     if (unit <= 0)
         return;
+    char *text = malloc(len + 1);
+    HPDF_Font use = text ? font_for(f, words, len, text) : NULL;
+    if (!use) {
+        free(text);
+        return;
+    }
     double diag = hypot(area.w, area.h), angle = atan2(area.h, area.w);
     double pt = fmin(diag * 0.75 / unit, fmin(area.w, area.h) * 0.2);
-    double tw = unit * pt, cap = HPDF_Font_GetCapHeight(f) / 1000.0 * pt;
+    double tw = unit * pt, cap = HPDF_Font_GetCapHeight(use) / 1000.0 * pt;
     double c = cos(angle), s = sin(angle);
     double cx = area.x + area.w / 2, cy = area.y + area.h / 2;
     double x0 = cx - tw / 2 * c + cap / 2 * s, y0 = cy - tw / 2 * s - cap / 2 * c;
@@ -661,7 +732,7 @@ void tw_draw_watermark(HPDF_Page p, HPDF_Font f, tw_box area, const char *text, 
     set_stroke(p, colour);
     HPDF_Page_SetLineWidth(p, (HPDF_REAL)fmax(0.5, pt * 0.025));
     HPDF_Page_BeginText(p);
-    HPDF_Page_SetFontAndSize(p, f, (HPDF_REAL)pt);
+    HPDF_Page_SetFontAndSize(p, use, (HPDF_REAL)pt);
     HPDF_Page_SetTextRenderingMode(p, HPDF_STROKE);
     HPDF_Page_SetTextMatrix(p, (HPDF_REAL)c, (HPDF_REAL)s, (HPDF_REAL)-s, (HPDF_REAL)c,
                             (HPDF_REAL)x0, (HPDF_REAL)y0);
@@ -669,4 +740,5 @@ void tw_draw_watermark(HPDF_Page p, HPDF_Font f, tw_box area, const char *text, 
     HPDF_Page_SetTextRenderingMode(p, HPDF_FILL);
     HPDF_Page_EndText(p);
     HPDF_Page_GRestore(p);
+    free(text);
 }

@@ -197,7 +197,7 @@ static row *add_row(block *b, row_kind kind, const char *what, const char *capti
 
 /* Largest size at most start at which the widest word of s fits in w (a word is broken across
  * lines only when it cannot fit even at min). */
-static double whole_words_pt(HPDF_Font f, const char *s, double w, double start, double min)
+static double whole_words_pt(tw_font *f, const char *s, double w, double start, double min)
 {
     double widest = 0;
     for (const char *p = s; *p;) {
@@ -216,7 +216,7 @@ static double whole_words_pt(HPDF_Font f, const char *s, double w, double start,
 static int fit_pair(const tw_pdf_doc *d, block *b, row *r, double w, double cap_w, double s,
                     double min, int stacked)
 {
-    HPDF_Font f = r->bold ? d->bold : d->regular;
+    tw_font *f = r->bold ? d->bold : d->regular;
     int cap_max = b->cap_max > 0 ? b->cap_max : 2;
     double cap_avail = stacked ? w : cap_w - 0.6 * s, avail = stacked ? w : w - cap_w;
     r->stacked = stacked;
@@ -261,7 +261,7 @@ static int breaks_word(const row *r)
 static int fit_row(const tw_pdf_doc *d, block *b, row *r, double w, double cap_w, double s,
                    double min)
 {
-    HPDF_Font f = r->bold ? d->bold : d->regular;
+    tw_font *f = r->bold ? d->bold : d->regular;
     double avail = w, start = fmax(min, s * r->scale);
     r->space = r->kind == ROW_TITLE ? 0.45 * s : r->kind == ROW_BOX ? 0.35 * s
              : r->kind == ROW_BIG ? 0.25 * s : 0;
@@ -432,7 +432,7 @@ static void draw_row(HPDF_Page p, const tw_pdf_doc *d, const block *b, const row
                      double y, double w)
 {
     double s = b->pt;
-    HPDF_Font f = r->bold ? d->bold : d->regular;
+    tw_font *f = r->bold ? d->bold : d->regular;
     switch (r->kind) {
     case ROW_TITLE:
         draw_title(p, d, r, x, y, w);

@@ -199,7 +199,7 @@ static const char *ownf(plan *P, const char *fmt, ...)
 }
 
 /* Wrap s into w at pt: a fresh span array (NULL with *n 0 when out of memory). */
-static tw_span *wrap(plan *P, HPDF_Font f, double pt, const char *s, double w, int *n)
+static tw_span *wrap(plan *P, tw_font *f, double pt, const char *s, double w, int *n)
 {
     *n = tw_wrap(f, pt, s, w, NULL, 0);
     tw_span *lines = calloc((size_t)(*n > 0 ? *n : 1), sizeof *lines);
@@ -212,7 +212,7 @@ static tw_span *wrap(plan *P, HPDF_Font f, double pt, const char *s, double w, i
     return lines;
 }
 
-static HPDF_Font value_font(const plan *P, int style)
+static tw_font *value_font(const plan *P, int style)
 {
     return style == V_STUDY || style == V_BOLD ? P->pdf.bold : P->pdf.regular;
 }
@@ -673,7 +673,7 @@ static double body_top(const plan *P)
 }
 
 /* One line of text with its top at top. */
-static void line_at(HPDF_Page pg, HPDF_Font f, double pt, double x, double top, const char *s,
+static void line_at(HPDF_Page pg, tw_font *f, double pt, double x, double top, const char *s,
                     tw_span sp, tw_rgb c)
 {
     tw_draw_text(pg, f, pt, x, top - tw_baseline_drop(f, pt), s + sp.start, sp.len, c);
@@ -682,7 +682,7 @@ static void line_at(HPDF_Page pg, HPDF_Font f, double pt, double x, double top, 
 static void draw_row(const plan *P, HPDF_Page pg, const row *r)
 {
     double top = body_top(P) - r->top, x0 = P->x, tx, tw;
-    HPDF_Font reg = P->pdf.regular, f = value_font(P, r->style);
+    tw_font *reg = P->pdf.regular, *f = value_font(P, r->style);
     tw_rgb ink = r->style == V_BLANK ? TW_GREY : TW_BLACK;
     text_column(P, r->kind, &tx, &tw);
     double pt = kind_pt(r->kind);
@@ -747,7 +747,7 @@ static void draw_row(const plan *P, HPDF_Page pg, const row *r)
 }
 
 /* Fit s on one line of width w, from start down to MIN_PT; 0 when it does not fit. */
-static double fit_line(HPDF_Font f, const char *s, double w, double start)
+static double fit_line(tw_font *f, const char *s, double w, double start)
 {
     return tw_fit_size(f, s, w, 1, start, MIN_PT);
 }
@@ -756,7 +756,7 @@ static int draw_header(const plan *P, HPDF_Page pg, char *err, size_t errlen)
 {
     const tw_job *j = P->in->job;
     double top = P->page_h - MARGIN, x = MARGIN, w = P->w - QR_SIDE - 12;
-    HPDF_Font b = P->pdf.bold, reg = P->pdf.regular;
+    tw_font *b = P->pdf.bold, *reg = P->pdf.regular;
     double pt = fit_line(b, title_text, w, 15);
     tw_draw_text(pg, b, pt, x, top - tw_baseline_drop(b, pt), title_text, strlen(title_text),
                  TW_BLACK);
@@ -776,7 +776,7 @@ static int draw_header(const plan *P, HPDF_Page pg, char *err, size_t errlen)
             snprintf(err, errlen, "out of memory");
             return -1;
         }
-        HPDF_Font f = i < 2 ? b : reg;
+        tw_font *f = i < 2 ? b : reg;
         double lpt = fit_line(f, t, w, i < 2 ? 11 : 8);
         if (lpt == 0) {
             snprintf(err, errlen, "the permit header line \"%s\" does not fit at %g pt", t, MIN_PT);
@@ -808,7 +808,7 @@ static int draw_header(const plan *P, HPDF_Page pg, char *err, size_t errlen)
 static int draw_footer(const plan *P, HPDF_Page pg, int page, char *err, size_t errlen)
 {
     const tw_job *j = P->in->job;
-    HPDF_Font b = P->pdf.bold, reg = P->pdf.regular;
+    tw_font *b = P->pdf.bold, *reg = P->pdf.regular;
     double top = MARGIN + FOOTER_H - 6;
     tw_draw_line(pg, MARGIN, top + 4, P->page_w - MARGIN, top + 4, 0.5, TW_BLACK);
     char pg_text[48];

@@ -300,7 +300,7 @@ static int row_texts(const tw_label *l, const tw_envelope *e, table_row *r)
 /* Wrap every cell; the row is as tall as its tallest cell. */
 static int row_layout(writer *w, table_row *r, int bold)
 {
-    HPDF_Font f = bold ? w->doc.bold : w->doc.regular;
+    tw_font *f = bold ? w->doc.bold : w->doc.regular;
     int most = 1;
     for (int c = 0; c < COL_COUNT; c++) {
         double cw = columns[c].width - 2 * CELL_PAD;

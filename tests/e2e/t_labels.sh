@@ -55,6 +55,19 @@ else
     fail "zbarimg/pdftoppm not installed"
 fi
 
+# Fonts: text WinAnsiEncoding can hold is shown in single-byte TrueType fonts; a description
+# outside it (Greek, an arrow, CJK) brings in the UTF-8 (Identity-H) font for that label only.
+fonts=$(pdffonts "$out" 2>/dev/null)
+contains "$fonts" "WinAnsi" "pdffonts: single-byte WinAnsi fonts for ASCII text"
+lacks "$fonts" "Identity-H" "pdffonts: no two-byte font when no text needs one"
+sed 's/^E2E-PNL-1,Lighting panel,/E2E-PNL-1,"Lighting panel Ω → 照明 — café",/' "$TW_DATA/core/small.csv" >"$TW_TMP/wide.csv"
+run labels "$TW_TMP/wide.csv" --out "$TW_TMP/wide.pdf" --date 2026-12-01
+expect_rc 0 "labels with text outside WinAnsiEncoding"
+fonts=$(pdffonts "$TW_TMP/wide.pdf" 2>/dev/null)
+contains "$fonts" "Identity-H" "pdffonts: the UTF-8 font is embedded when a text needs it"
+contains "$(page_text "$TW_TMP/wide.pdf" 1)" "Lighting panel Ω → 照明 — café" "pdftotext reads back the text outside WinAnsiEncoding"
+contains "$(page_text "$TW_TMP/wide.pdf" 2)" "Motor control centre, line 2" "the other labels read back as before"
+
 # --bus selects one label
 run labels "$TW_DATA/core/small.csv" --out "$TW_TMP/one.pdf" --bus E2E-SWGR-1 --date 2026-12-01
 expect_rc 0 "--bus prints one label"

@@ -41,8 +41,18 @@ static void default_volume_size_should_stay_within_the_limits(void **state)
     assert_true(TW_MAX_VOLUME_SIZE <= 32767);
 }
 
-/* tw_text_width sums cached ASCII glyph widths; it must agree with libharu's own measure for
- * ASCII text and fall back to it for anything else. */
+static double libharu_width(HPDF_Font f, const char *s, double pt)
+{
+    size_t len = strlen(s);
+    if (!len)
+        return 0;
+    HPDF_TextWidth tw = HPDF_Font_TextWidth(f, (const HPDF_BYTE *)s, (HPDF_UINT)len);
+    return tw.width * pt / 1000.0;
+}
+
+/* tw_text_width sums the document's ASCII glyph widths; it must agree with libharu's own
+ * measure for ASCII text, and for other text give what libharu gives in either font: the
+ * single-byte (WinAnsiEncoding) font for text it can encode, the UTF-8 font otherwise. */
 static void text_width_should_match_libharu_for_ascii_and_other_text(void **state)
 {
     (void)state;
@@ -50,22 +60,54 @@ static void text_width_should_match_libharu_for_ascii_and_other_text(void **stat
     char err[256];
     if (tw_pdf_doc_open(&d, "2026-12-01", err, sizeof err) != 0)
         fail_msg("%s", err);
-    const char *texts[] = {"Arc-flash boundary", "4 ft 9 in (1433 mm)", "~!@#$%^&*()_+{}|:<>?",
-                           "Schaltanlage \303\234berwachung", "", "x"};
-    HPDF_Font fonts[] = {d.regular, d.bold};
-    for (int f = 0; f < 2; f++)
-        for (size_t i = 0; i < sizeof texts / sizeof texts[0]; i++) {
-            size_t len = strlen(texts[i]);
-            double want = 0;
-            if (len) {
-                HPDF_TextWidth tw = HPDF_Font_TextWidth(fonts[f], (const HPDF_BYTE *)texts[i],
-                                                        (HPDF_UINT)len);
-                want = tw.width * 9.5 / 1000.0;
-            }
-            assert_true(tw_text_width(fonts[f], 9.5, texts[i], len) == want);
-            /* twice: the second comes from the cache */
-            assert_true(tw_text_width(fonts[f], 9.5, texts[i], len) == want);
+    const char *ascii[] = {"Arc-flash boundary", "4 ft 9 in (1433 mm)", "~!@#$%^&*()_+{}|:<>?",
+                           "", "x"};
+    /* UTF-8 text and the same text in WinAnsiEncoding (NULL: it has no code there) */
+    const char *other[][2] = {
+        {"Schaltanlage \303\234berwachung", "Schaltanlage \334berwachung"},
+        {"Energ\303\255a incidente \342\200\224 caf\303\251 \342\202\254", "Energ\355a incidente \227 caf\351 \200"},
+        {"\342\200\242 Clase 00", "\225 Clase 00"},
+        {"R = 10 \316\251", NULL},
+        {"\344\270\255\346\226\207", NULL},
+    };
+    tw_font *fonts[] = {d.regular, d.bold};
+    for (int f = 0; f < 2; f++) {
+        for (size_t i = 0; i < sizeof ascii / sizeof ascii[0]; i++) {
+            double want = libharu_width(fonts[f]->byte, ascii[i], 9.5);
+            assert_true(tw_text_width(fonts[f], 9.5, ascii[i], strlen(ascii[i])) == want);
         }
+        for (size_t i = 0; i < sizeof other / sizeof other[0]; i++) {
+            double got = tw_text_width(fonts[f], 9.5, other[i][0], strlen(other[i][0]));
+            HPDF_Font wide = tw_font_wide(fonts[f]);
+            assert_non_null(wide);
+            assert_true(got == libharu_width(wide, other[i][0], 9.5));
+            if (other[i][1])
+                assert_true(got == libharu_width(fonts[f]->byte, other[i][1], 9.5));
+        }
+    }
+    tw_pdf_doc_close(&d);
+}
+
+/* Text WinAnsiEncoding can hold is shown in the single-byte font; other text in the UTF-8 font,
+ * which a document makes only when it first needs it. */
+static void draw_text_should_pick_the_single_byte_font_when_it_can(void **state)
+{
+    (void)state;
+    tw_pdf_doc d;
+    char err[256];
+    if (tw_pdf_doc_open(&d, "2026-12-01", err, sizeof err) != 0)
+        fail_msg("%s", err);
+    HPDF_Page p = tw_pdf_doc_page(&d, 288, 432);
+    assert_non_null(p);
+    const char *spanish = "PELIGRO \342\200\242 Energ\303\255a incidente";
+    tw_draw_text(p, d.regular, 9, 10, 10, spanish, strlen(spanish), TW_BLACK);
+    assert_ptr_equal(HPDF_Page_GetCurrentFont(p), d.regular->byte);
+    assert_null(d.regular->wide);
+    const char *greek = "10 \316\251";
+    tw_draw_text(p, d.regular, 9, 10, 30, greek, strlen(greek), TW_BLACK);
+    assert_non_null(d.regular->wide);
+    assert_ptr_equal(HPDF_Page_GetCurrentFont(p), d.regular->wide);
+    assert_int_equal(tw_pdf_doc_check(&d, err, sizeof err), 0);
     tw_pdf_doc_close(&d);
 }
 
@@ -77,6 +119,7 @@ int main(void)
         cmocka_unit_test(volume_path_should_widen_past_three_digits),
         cmocka_unit_test(default_volume_size_should_stay_within_the_limits),
         cmocka_unit_test(text_width_should_match_libharu_for_ascii_and_other_text),
+        cmocka_unit_test(draw_text_should_pick_the_single_byte_font_when_it_can),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
