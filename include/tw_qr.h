@@ -2,8 +2,8 @@
  * tw_qr.h - the QR code on each label and permit: its payload and its module matrix.
  *
  * Payload: the site's record-link template with {study}, {equipment}, {revision} and {hash}
- * replaced (values percent-encoded). A template without {hash} gets "#sha256=<hash>" appended,
- * so every payload carries the content hash. Encoding: libqrencode, 8-bit mode (with numeric
+ * replaced (values percent-encoded; {HASH} is the hash in capitals). A template without {hash}
+ * or {HASH} gets "#sha256=<hash>" appended, so every payload carries the content hash. Encoding: libqrencode, 8-bit mode (with numeric
  * and alphanumeric segments where they are shorter), error correction level M, smallest
  * version that fits.
  */
@@ -12,9 +12,13 @@
 
 #include <stddef.h>
 
-/* Default record link when the site names none: short, because the payload's length decides
- * the symbol's size and its encoding time (version 7, 45 x 45, for 16-character IDs). */
-#define TW_DEFAULT_RECORD_LINK "https://records.invalid/{study}/{equipment}/{revision}#{hash}"
+/* Default record link when the site names none. The payload's length and its characters decide
+ * the symbol's size and its encoding time, so every character of this one can go in QR
+ * alphanumeric mode when the IDs are in capitals: the scheme and host in capitals (they are
+ * case-insensitive, RFC 3986 sections 3.1 and 3.2.2), '/' before the hash and the hash in
+ * capitals. Version 5 (37 x 37 modules) for 16-character IDs, against version 7 (45 x 45) for
+ * "https://records.invalid/{study}/{equipment}/{revision}#{hash}". */
+#define TW_DEFAULT_RECORD_LINK "HTTPS://RECORDS.INVALID/{study}/{equipment}/{revision}/{HASH}"
 
 /* Build the payload; fresh string (caller frees), NULL when out of memory. */
 char *tw_qr_payload(const char *link_template, const char *study_id, const char *equipment_id,

@@ -63,12 +63,25 @@ static void sb_put_encoded(strbuf *b, const char *s)
     }
 }
 
+/* The hash in capitals: QR alphanumeric mode holds 0-9, A-Z and " $%*+-./:" at 5.5 bits a
+ * character, against 8 bits in byte mode (ISO/IEC 18004), so a hash in capitals after a '/'
+ * costs 352 bits instead of 512. */
+static void put_upper(strbuf *b, const char *hex)
+{
+    for (const char *p = hex ? hex : ""; *p; p++) {
+        char c = *p >= 'a' && *p <= 'z' ? (char)(*p - 'a' + 'A') : *p;
+        if (is_unreserved((unsigned char)c))
+            sb_put(b, &c, 1);
+    }
+}
+
 /* Expand one placeholder at s (which starts with '{'); returns the bytes consumed, 0 when s
  * is not a known placeholder. */
 static size_t expand_one(strbuf *b, const char *s, const char *study, const char *equipment,
                          int revision, const char *hash, int *saw_hash)
 {
-    static const char *const names[] = {"{study}", "{equipment}", "{revision}", "{hash}"};
+    static const char *const names[] = {"{study}", "{equipment}", "{revision}", "{hash}",
+                                        "{HASH}"};
     for (size_t i = 0; i < sizeof names / sizeof names[0]; i++) {
         size_t n = strlen(names[i]);
         if (strncmp(s, names[i], n) != 0)
@@ -81,8 +94,11 @@ static size_t expand_one(strbuf *b, const char *s, const char *study, const char
             char num[16];
             snprintf(num, sizeof num, "%d", revision);
             sb_put(b, num, strlen(num));
-        } else {
+        } else if (i == 3) {
             sb_put_encoded(b, hash);
+            *saw_hash = 1;
+        } else {
+            put_upper(b, hash);
             *saw_hash = 1;
         }
         return n;

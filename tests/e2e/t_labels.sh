@@ -46,7 +46,8 @@ if has_tool zbarimg && has_tool pdftoppm; then
     payload=$(qr_of "$out" 2)
     hash=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["content_hash"])' "$TW_TMP/labels.manifest.json")
     mpay=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["payload"])' "$TW_TMP/labels.manifest.json")
-    contains "$payload" "$hash" "QR decoded by zbarimg carries the manifest's content hash"
+    contains "$payload" "${hash^^}" "QR decoded by zbarimg carries the manifest's content hash (in capitals)"
+    contains "$payload" "HTTPS://RECORDS.INVALID/E2E-STUDY/E2E-MCC-1/1/" "default record link: study, equipment, revision"
     [ "$payload" = "$mpay" ] && ok "QR payload equals the manifest's payload" || fail "QR payload '$payload' != '$mpay'"
     # the hash is the SHA-256 of the canonical content recorded in the manifest
     content_hash=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["content"], end="")' "$TW_TMP/labels.manifest.json" | sha256sum | cut -d" " -f1)

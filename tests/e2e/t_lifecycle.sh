@@ -46,8 +46,8 @@ h1=$(manifest_field RP-SWGR-1 1 content_hash); h2=$(manifest_field RP-SWGR-1 2 c
 [ "$h1" != "$h2" ] && ok "the revised label's content hash differs from the study's" || fail "same hash"
 if has_tool zbarimg && has_tool pdftoppm; then
     q=$(qr_of "$TW_TMP/swgr.pdf" 1)
-    contains "$q" "/2#" "QR carries revision 2"
-    contains "$q" "$h2" "QR carries the new content hash"
+    contains "$q" "/2/" "QR carries revision 2"
+    contains "$q" "${h2^^}" "QR carries the new content hash (in capitals, QR alphanumeric mode)"
 else
     fail "zbarimg/pdftoppm not installed"
 fi
@@ -125,13 +125,13 @@ contains "$OUT" "superseded: RP-SWGR-1 revision 1" "verify says superseded"
 contains "$OUT" "current revision: 2" "verify names the current revision"
 contains "$OUT" "incident_energy: 8.4 cal/cm2 -> 6.6 cal/cm2" "verify shows what changed"
 tampered=$(python3 -c 'import sys
-p = sys.argv[1]; i = p.index("#") + 1
+p = sys.argv[1]; i = p.rindex("/") + 1
 print(p[:i] + ("1" if p[i] != "1" else "2") + p[i + 1:])' "$p2")
 [ "$tampered" != "$p2" ] && ok "a tampered payload differs" || fail "tampering did not change the payload"
 run verify --manifest "$M" "$tampered"
 expect_rc 2 "verify: tampered hash is unknown"
 contains "$OUT" "unknown" "verify says unknown"
-run verify --manifest "$M" "${p2/\/2#/\/3#}"
+run verify --manifest "$M" "${p2/\/2\//\/3\/}"
 expect_rc 2 "verify: right hash but altered payload is unknown"
 run verify --manifest "$M" "https://records.invalid/nothing"
 expect_rc 2 "verify: payload without a hash is unknown"

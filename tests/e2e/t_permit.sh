@@ -81,7 +81,7 @@ run permit "$small" --job "$jobs/job.json" --out "$TW_TMP/rev2.pdf" --date 2026-
     --manifest "$TW_TMP/old.manifest.json"
 expect_rc 0 "a permit against a manifest with other content"
 contains "$ERR" "reprint the label" "warns that the posted label says something else"
-contains "$(qr_of "$TW_TMP/rev2.pdf" 1)" "/2#" "the QR names the next revision"
+contains "$(qr_of "$TW_TMP/rev2.pdf" 1)" "/2/" "the QR names the next revision"
 
 # Same input and date, same bytes.
 run permit "$small" --job "$jobs/job.json" --out "$TW_TMP/again.pdf" --date 2026-12-01

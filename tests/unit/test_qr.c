@@ -4,6 +4,7 @@
 #include "tw_qr.h"
 
 #define HASH "0123456789abcdef0123456789abcdef0123456789abcdef0123456789abcdef"
+#define HASH_UPPER "0123456789ABCDEF0123456789ABCDEF0123456789ABCDEF0123456789ABCDEF"
 
 static void payload_should_expand_every_placeholder(void **state)
 {
@@ -58,7 +59,38 @@ static void payload_should_use_the_default_link_without_a_template(void **state)
     (void)state;
     char *p = tw_qr_payload(NULL, "ST-1", "MCC-3", 4, HASH);
     assert_non_null(p);
-    assert_string_equal(p, "https://records.invalid/ST-1/MCC-3/4#" HASH);
+    assert_string_equal(p, "HTTPS://RECORDS.INVALID/ST-1/MCC-3/4/" HASH_UPPER);
+    free(p);
+}
+
+static void payload_should_put_the_hash_in_capitals_for_HASH(void **state)
+{
+    (void)state;
+    char *p = tw_qr_payload("https://x.invalid/{equipment}/{HASH}?lower={hash}", "S", "B 1", 2,
+                            HASH);
+    assert_non_null(p);
+    assert_string_equal(p, "https://x.invalid/B%201/" HASH_UPPER "?lower=" HASH);
+    free(p);
+    char h[65];
+    p = tw_qr_payload("{HASH}", "S", "E", 1, HASH);
+    assert_int_equal(tw_qr_payload_hash(p, h), 0);
+    assert_string_equal(h, HASH); /* read back in lower case, as the manifest has it */
+    free(p);
+}
+
+/* The default link puts the whole payload in QR alphanumeric mode for IDs in capitals: the
+ * symbol is version 5 (37 x 37 modules) for 16-character IDs at error correction level M
+ * (ISO/IEC 18004 Table 7: version 5-M holds 122 alphanumeric characters, version 4-M 90; from
+ * memory, verify against the edition in force). This payload has 120. */
+static void default_link_should_fit_version_5_for_sixteen_character_ids(void **state)
+{
+    (void)state;
+    char *p = tw_qr_payload(NULL, "BN-AF-BENCH", "BN-DIG-PNL000001", 12, HASH);
+    assert_non_null(p);
+    tw_qr q;
+    assert_int_equal(tw_qr_encode(p, &q), 0);
+    assert_int_equal(q.width, 37);
+    tw_qr_free(&q);
     free(p);
 }
 
@@ -184,6 +216,8 @@ int main(void)
         cmocka_unit_test(payload_should_leave_a_missing_study_empty),
         cmocka_unit_test(payload_should_keep_unknown_braces_literally),
         cmocka_unit_test(payload_should_use_the_default_link_without_a_template),
+        cmocka_unit_test(payload_should_put_the_hash_in_capitals_for_HASH),
+        cmocka_unit_test(default_link_should_fit_version_5_for_sixteen_character_ids),
         cmocka_unit_test(payload_hash_should_be_found_in_a_payload),
         cmocka_unit_test(payload_hash_should_ignore_runs_that_are_not_64_digits),
         cmocka_unit_test(encode_should_pick_the_smallest_version_at_level_m),
