@@ -269,18 +269,21 @@ static int fit_row(const tw_pdf_doc *d, block *b, row *r, double w, double cap_w
     r->cap_w = cap_w;
     if (r->kind == ROW_PAIR) {
         int side = fit_pair(d, b, r, w, cap_w, s, min, 0);
-        double side_h = r->h;
-        int side_n = r->n, side_broken = breaks_word(r);
         if (!r->caption)
             return side;
+        row beside = *r; /* kept rather than fitted again when side by side wins */
+        int side_broken = side == 0 && breaks_word(r);
         /* stacked when lower, or as low with the value on fewer lines, or when only stacking
          * keeps every word of the value whole (a date or an ID beside a narrow caption) */
         int under = fit_pair(d, b, r, w, cap_w, s, min, 1);
-        if (under == 0 && (side != 0 || r->h < side_h - 1e-6 ||
-                           (r->h < side_h + 1e-6 && r->n < side_n) ||
+        if (under == 0 && (side != 0 || r->h < beside.h - 1e-6 ||
+                           (r->h < beside.h + 1e-6 && r->n < beside.n) ||
                            (side_broken && !breaks_word(r))))
             return 0;
-        return side == 0 ? fit_pair(d, b, r, w, cap_w, s, min, 0) : -1;
+        if (side != 0)
+            return -1;
+        *r = beside;
+        return 0;
     }
     if (r->kind == ROW_BOX)
         avail = w - 1.2 * s;
@@ -388,19 +391,31 @@ static int fit_block(const tw_pdf_doc *d, block *b, const tw_layout *lay, tw_box
         max_cols = BLOCK_MAX_REGIONS - 1;
     double min = lay->min_pt;
     for (int c = 1; c <= max_cols; c++) {
-        /* the tightest setting first: when even that fails, no larger size will fit */
+        /* The layout's own size with the gap first: most labels fit there at once. */
+        b->study_gap = 1;
+        set_regions(b, lay, study, c, lay->body_pt);
+        if (fit_block_at(d, b, lay->body_pt, min) == 0)
+            return 0;
+        /* Then the tightest setting: when even that fails, no larger size will fit. */
         b->study_gap = 0;
         set_regions(b, lay, study, c, min);
         if (fit_block_at(d, b, min, min) != 0)
             continue;
-        for (b->study_gap = 1; b->study_gap >= 0; b->study_gap--) /* the gap goes first */
-            for (double s = lay->body_pt;; s = fmax(min, s - 0.5)) {
+        for (b->study_gap = 1; b->study_gap >= 0; b->study_gap--) { /* the gap goes first */
+            double s = lay->body_pt;
+            if (b->study_gap == 1) { /* its first size was tried above */
+                if (s <= min)
+                    continue;
+                s = fmax(min, s - 0.5);
+            }
+            for (;; s = fmax(min, s - 0.5)) {
                 set_regions(b, lay, study, c, s);
                 if (fit_block_at(d, b, s, min) == 0)
                     return 0;
                 if (s <= min)
                     break;
             }
+        }
     }
     if (b->failed && b->failed - b->rows >= b->study_from && b->study_from >= 0)
         region = lay->qr_side ? "body" : "study";
