@@ -182,18 +182,23 @@ static void setf(deriver *D, tw_label_key k, const char *fmt, ...)
 
 static void setf(deriver *D, tw_label_key k, const char *fmt, ...)
 {
+    char small[128]; /* every value fits; the second pass is for one that does not */
     va_list ap;
     va_start(ap, fmt);
-    int n = vsnprintf(NULL, 0, fmt, ap);
+    int n = vsnprintf(small, sizeof small, fmt, ap);
     va_end(ap);
     char *text = n >= 0 ? malloc((size_t)n + 1) : NULL;
     if (!text) {
         report(D, TW_ERROR, TW_F_COUNT, "out of memory while writing %s", key_names[k]);
         return;
     }
-    va_start(ap, fmt);
-    vsnprintf(text, (size_t)n + 1, fmt, ap);
-    va_end(ap);
+    if ((size_t)n < sizeof small) {
+        memcpy(text, small, (size_t)n + 1);
+    } else {
+        va_start(ap, fmt);
+        vsnprintf(text, (size_t)n + 1, fmt, ap);
+        va_end(ap);
+    }
     free(D->out->value[k]);
     D->out->value[k] = text;
 }
