@@ -59,6 +59,10 @@ typedef struct {
 /* The built-in 4 x 6 in single label, used when no layout is named. 0 or -1 (out of memory). */
 int tw_layout_default(tw_layout *l);
 
+/* Labels on one page: columns x rows (at least 1). Labels fill pages in order, so label k of a
+ * document is on page k / tw_layout_per_page() + 1. */
+int tw_layout_per_page(const tw_layout *l);
+
 /* Load a layout by file path (contains '/' or ends in .json) or by shipped name from
  * layouts_dir. Returns 0, or -1 with findings naming the file and JSON path. */
 int tw_layout_load(const char *name_or_path, const char *layouts_dir, tw_layout *l, tw_diags *d);

@@ -611,6 +611,12 @@ int tw_layout_default(tw_layout *l)
     return rc;
 }
 
+int tw_layout_per_page(const tw_layout *l)
+{
+    int n = l->columns * l->rows;
+    return n > 0 ? n : 1;
+}
+
 const char *tw_layouts_dir(void)
 {
     const char *env = getenv("TAGWRIGHT_LAYOUTS");

@@ -913,7 +913,7 @@ tw_label_doc *tw_label_doc_new(const tw_layout *layout, const tw_site *site,
 static HPDF_Page label_page(tw_label_doc *doc, double *ox, double *oy)
 {
     const tw_layout *lay = &doc->layout;
-    int per_page = lay->columns * lay->rows, cell = doc->count % per_page;
+    int per_page = tw_layout_per_page(lay), cell = doc->count % per_page;
     if (cell == 0 || !doc->page) {
         doc->page = tw_pdf_doc_page(&doc->pdf, lay->page_w, lay->page_h);
         if (!doc->page)

@@ -335,6 +335,7 @@ static void volumes_remove(volume *v, size_t n)
 typedef struct {
     char **payloads;
     int *pages;          /* page within its volume (points into the shared run) */
+    int per_page;        /* labels on one page of the layout */
     size_t per_volume;
     volume *vols;
     size_t nvols;
@@ -484,15 +485,15 @@ static int worker_count(int jobs, size_t nvols)
     return (size_t)want > nvols ? (int)nvols : want;
 }
 
-/* Start the workers and wait for all of them. 0, or -1 with a message when a worker could not
- * be started or ended abnormally. */
-static int run_workers(const tw_label *labels, size_t n, const tw_print_opts *o, placed *p,
-                       shared_run *s, int workers, char *err, size_t errlen)
+/* Start the workers. The number started (all of them, or fewer with a message in err and the
+ * others told to stop). */
+static int start_workers(const tw_label *labels, size_t n, const tw_print_opts *o, placed *p,
+                         shared_run *s, int workers, pid_t *pids, char *err, size_t errlen)
 {
     long cpus = sysconf(_SC_NPROCESSORS_ONLN);
     int qr_threads = cpus > workers ? (int)(cpus / workers) : 1;
-    pid_t parent = getpid(), pids[MAX_JOBS];
-    int started = 0, bad = 0;
+    pid_t parent = getpid();
+    int started = 0;
     fflush(NULL);
     for (; started < workers; started++) {
         pid_t pid = fork();
@@ -501,11 +502,17 @@ static int run_workers(const tw_label *labels, size_t n, const tw_print_opts *o,
         if (pid < 0) {
             snprintf(err, errlen, "cannot start a worker process: %s", strerror(errno));
             atomic_store(&s->prog->failed_min, 0); /* the others stop */
-            bad = 1;
             break;
         }
         pids[started] = pid;
     }
+    return started;
+}
+
+/* Wait for every started worker. 0, or -1 with a message in err when one ended abnormally
+ * (err is left alone when bad is already set). */
+static int wait_workers(const pid_t *pids, int started, int bad, char *err, size_t errlen)
+{
     for (int i = 0; i < started; i++) {
         int status;
         while (waitpid(pids[i], &status, 0) < 0 && errno == EINTR)
@@ -522,16 +529,50 @@ static int run_workers(const tw_label *labels, size_t n, const tw_print_opts *o,
     return bad ? -1 : 0;
 }
 
-/* Every volume written to its temporary file; none published yet. */
-static int write_volumes(const tw_label *labels, size_t n, const tw_print_opts *o, placed *p,
-                         shared_run *s, char *err, size_t errlen)
+/* The page of label i within its volume: labels fill the layout's pages in order. */
+static int page_of(const placed *p, size_t i)
 {
-    int workers = worker_count(p->jobs, p->nvols);
-    long cpus = sysconf(_SC_NPROCESSORS_ONLN);
-    if (workers <= 1)
-        work_volumes(labels, n, o, p, s, cpus > QR_MAX_THREADS ? QR_MAX_THREADS : (int)cpus);
-    else if (run_workers(labels, n, o, p, s, workers, err, errlen) != 0)
-        return TW_EXIT_IO;
+    return (int)(i % p->per_volume / (size_t)p->per_page) + 1;
+}
+
+/* Record every label and write the manifest in full to out, not yet published. */
+static int record_all(tw_manifest *m, const tw_label *labels, size_t n, const tw_print_opts *o,
+                      const placed *p, tw_atomic *out, char *err, size_t errlen)
+{
+    for (size_t i = 0; i < n; i++) {
+        if (labels[i].draft)
+            continue;
+        size_t v = i / p->per_volume;
+        char *copy = tw_strdup(p->vols[v].path);
+        char *content = tw_label_canonical(&labels[i]);
+        tw_manifest_print rec = {
+            .equipment_id = labels[i].value[TW_L_EQUIPMENT_ID],
+            .hash = labels[i].hash,
+            .content = content,
+            .study_id = labels[i].value[TW_L_STUDY_ID],
+            .printed = o->print_date,
+            .output = copy ? basename(copy) : NULL,
+            .payload = p->payloads[i],
+            .reason = o->reason,
+            .volume = (int)v + 1,
+            .page = page_of(p, i),
+        };
+        int rev = content && copy ? tw_manifest_record(m, &rec) : -1;
+        free(content);
+        free(copy);
+        if (rev < 0) {
+            snprintf(err, errlen, "out of memory while recording the manifest");
+            return TW_EXIT_IO;
+        }
+    }
+    return tw_manifest_write(m, out, err, errlen) == 0 ? TW_EXIT_OK : TW_EXIT_IO;
+}
+
+/* The outcome of the volumes once every worker is done: TW_EXIT_OK when all are written to their
+ * temporary files (none published yet) on the pages the manifest was told. */
+static int volumes_outcome(const placed *p, const shared_run *s, size_t n, char *err,
+                           size_t errlen)
+{
     for (size_t v = 0; v < p->nvols; v++) {
         if (s->state[v] == VOL_FAILED) { /* the first failure, as one worker would report it */
             snprintf(err, errlen, "%s", s->err[v]);
@@ -542,7 +583,41 @@ static int write_volumes(const tw_label *labels, size_t n, const tw_print_opts *
             return TW_EXIT_IO;
         }
     }
+    for (size_t i = 0; i < n; i++)
+        if (s->pages[i] != page_of(p, i)) {
+            snprintf(err, errlen, "label %zu was drawn on page %d of its volume, not on page %d "
+                     "as recorded; nothing is published", i + 1, s->pages[i], page_of(p, i));
+            return TW_EXIT_IO;
+        }
     return TW_EXIT_OK;
+}
+
+/* Draw and write every volume, and record every label in the manifest written to mout (not yet
+ * published). With worker processes, this process records the labels while they draw: the page
+ * of each label follows from its place in its volume, and is checked against what the workers
+ * drew before anything is published. */
+static int write_and_record(tw_manifest *m, const tw_label *labels, size_t n,
+                            const tw_print_opts *o, placed *p, shared_run *s, tw_atomic *mout,
+                            char *err, size_t errlen)
+{
+    int workers = worker_count(p->jobs, p->nvols);
+    if (workers <= 1) {
+        long cpus = sysconf(_SC_NPROCESSORS_ONLN);
+        work_volumes(labels, n, o, p, s, cpus > QR_MAX_THREADS ? QR_MAX_THREADS : (int)cpus);
+        int rc = volumes_outcome(p, s, n, err, errlen);
+        return rc == TW_EXIT_OK ? record_all(m, labels, n, o, p, mout, err, errlen) : rc;
+    }
+    pid_t pids[MAX_JOBS];
+    int started = start_workers(labels, n, o, p, s, workers, pids, err, errlen);
+    int rc = started < workers ? TW_EXIT_IO : record_all(m, labels, n, o, p, mout, err, errlen);
+    if (rc != TW_EXIT_OK)
+        atomic_store(&s->prog->failed_min, 0); /* the workers stop at their next label */
+    char werr[512];
+    if (wait_workers(pids, started, rc != TW_EXIT_OK, werr, sizeof werr) != 0) {
+        snprintf(err, errlen, "%s", werr);
+        return TW_EXIT_IO;
+    }
+    return rc == TW_EXIT_OK ? volumes_outcome(p, s, n, err, errlen) : rc;
 }
 
 /* Rename every volume into place, in order, then the manifest, once all are written in full:
@@ -566,39 +641,6 @@ static int publish_all(placed *p, tw_atomic *manifest, char *err, size_t errlen)
     return rc;
 }
 
-/* Record every label and write the manifest in full to out, not yet published. */
-static int record_all(tw_manifest *m, const tw_label *labels, size_t n, const tw_print_opts *o,
-                      const placed *p, tw_atomic *out, char *err, size_t errlen)
-{
-    for (size_t i = 0; i < n; i++) {
-        if (labels[i].draft)
-            continue;
-        size_t v = i / p->per_volume;
-        char *copy = tw_strdup(p->vols[v].path);
-        char *content = tw_label_canonical(&labels[i]);
-        tw_manifest_print rec = {
-            .equipment_id = labels[i].value[TW_L_EQUIPMENT_ID],
-            .hash = labels[i].hash,
-            .content = content,
-            .study_id = labels[i].value[TW_L_STUDY_ID],
-            .printed = o->print_date,
-            .output = copy ? basename(copy) : NULL,
-            .payload = p->payloads[i],
-            .reason = o->reason,
-            .volume = (int)v + 1,
-            .page = p->pages[i],
-        };
-        int rev = content && copy ? tw_manifest_record(m, &rec) : -1;
-        free(content);
-        free(copy);
-        if (rev < 0) {
-            snprintf(err, errlen, "out of memory while recording the manifest");
-            return TW_EXIT_IO;
-        }
-    }
-    return tw_manifest_write(m, out, err, errlen) == 0 ? TW_EXIT_OK : TW_EXIT_IO;
-}
-
 int tw_print_labels(const tw_label *labels, size_t n, const tw_print_opts *o, char *err,
                     size_t errlen)
 {
@@ -615,7 +657,8 @@ int tw_print_labels_jobs(const tw_label *labels, size_t n, const tw_print_opts *
                          size_t volume_size, int jobs, char *err, size_t errlen)
 {
     char *mpath = o->manifest_path ? tw_strdup(o->manifest_path) : tw_manifest_path_for(o->out_pdf);
-    placed p = {calloc(n ? n : 1, sizeof(char *)), NULL, 0, NULL, 0, jobs};
+    placed p = {calloc(n ? n : 1, sizeof(char *)), NULL, tw_layout_per_page(o->layout), 0,
+                NULL, 0, jobs};
     shared_run s = {0};
     tw_manifest m;
     tw_atomic manifest_out;
@@ -653,9 +696,7 @@ int tw_print_labels_jobs(const tw_label *labels, size_t n, const tw_print_opts *
     if (rc == TW_EXIT_OK)
         rc = make_payloads(labels, n, &m, o, &p, err, errlen);
     if (rc == TW_EXIT_OK)
-        rc = write_volumes(labels, n, o, &p, &s, err, errlen);
-    if (rc == TW_EXIT_OK)
-        rc = record_all(&m, labels, n, o, &p, &manifest_out, err, errlen);
+        rc = write_and_record(&m, labels, n, o, &p, &s, &manifest_out, err, errlen);
     if (rc == TW_EXIT_OK)
         rc = publish_all(&p, &manifest_out, err, errlen);
     tw_atomic_abort(&manifest_out); /* accepts a committed one */
