@@ -432,61 +432,86 @@ static int fit_block(const tw_pdf_doc *d, block *b, const tw_layout *lay, tw_box
     return -1;
 }
 
-static void draw_title(HPDF_Page p, const tw_pdf_doc *d, const row *r, double x, double top,
-                       double w)
+/*
+ * Rows are drawn in two passes: shapes and every text in the regular font first, then every
+ * text in bold. Captions are regular and most values bold, so drawing row by row would switch
+ * the font for every string; two passes write a font operator a handful of times per label
+ * instead of thirty (libharu clears a 512-byte buffer for each operator, and every byte of
+ * the page stream is compressed). Nothing on a label overlaps, so the order is not visible.
+ */
+typedef struct {
+    HPDF_Page p;
+    const tw_pdf_doc *d;
+    int bold_pass;
+} pass;
+
+static void lines_in(const pass *ps, tw_font *f, double pt, double x, double top, double w,
+                     const char *s, const tw_span *lines, int n, tw_align a)
 {
-    tw_draw_lines(p, d->bold, r->pt, x, top, w, r->text, r->lines, r->n, TW_ALIGN_LEFT,
-                  TW_BLACK);
-    double tw = tw_text_width(d->bold, r->pt, r->text + r->lines[0].start, r->lines[0].len);
-    double y = top - tw_baseline_drop(d->bold, r->pt) + r->pt * 0.35;
-    if (r->n == 1 && tw + r->pt < w)
-        tw_draw_line(p, x + tw + 0.5 * r->pt, y, x + w, y, 0.6, TW_BLACK);
+    if ((f == ps->d->bold) == (ps->bold_pass != 0))
+        tw_draw_lines(ps->p, f, pt, x, top, w, s, lines, n, a, TW_BLACK);
 }
 
-static void draw_row(HPDF_Page p, const tw_pdf_doc *d, const block *b, const row *r, double x,
-                     double y, double w)
+static void draw_title(const pass *ps, const row *r, double x, double top, double w)
 {
+    tw_font *b = ps->d->bold;
+    lines_in(ps, b, r->pt, x, top, w, r->text, r->lines, r->n, TW_ALIGN_LEFT);
+    if (ps->bold_pass)
+        return;
+    double tw = tw_text_width(b, r->pt, r->text + r->lines[0].start, r->lines[0].len);
+    double y = top - tw_baseline_drop(b, r->pt) + r->pt * 0.35;
+    if (r->n == 1 && tw + r->pt < w)
+        tw_draw_line(ps->p, x + tw + 0.5 * r->pt, y, x + w, y, 0.6, TW_BLACK);
+}
+
+static void draw_row(const pass *ps, const block *b, const row *r, double x, double y, double w)
+{
+    const tw_pdf_doc *d = ps->d;
     double s = b->pt;
     tw_font *f = r->bold ? d->bold : d->regular;
     switch (r->kind) {
     case ROW_TITLE:
-        draw_title(p, d, r, x, y, w);
+        draw_title(ps, r, x, y, w);
         break;
     case ROW_PAIR: {
         if (r->stacked) {
-            tw_draw_lines(p, d->regular, s, x, y, w, r->caption, r->cap_lines, r->cap_n,
-                          TW_ALIGN_LEFT, TW_BLACK);
-            tw_draw_lines(p, f, r->pt, x, y - r->cap_n * s * TW_LEADING, w, r->text, r->lines,
-                          r->n, TW_ALIGN_LEFT, TW_BLACK);
+            lines_in(ps, d->regular, s, x, y, w, r->caption, r->cap_lines, r->cap_n,
+                     TW_ALIGN_LEFT);
+            lines_in(ps, f, r->pt, x, y - r->cap_n * s * TW_LEADING, w, r->text, r->lines, r->n,
+                     TW_ALIGN_LEFT);
             break;
         }
-        tw_draw_lines(p, d->regular, s, x, y, r->cap_w, r->caption ? r->caption : "",
-                      r->cap_lines, r->cap_n, TW_ALIGN_LEFT, TW_BLACK);
+        lines_in(ps, d->regular, s, x, y, r->cap_w, r->caption ? r->caption : "", r->cap_lines,
+                 r->cap_n, TW_ALIGN_LEFT);
         /* first baselines level with the caption's */
         double vtop = y - tw_baseline_drop(d->regular, s) + tw_baseline_drop(f, r->pt);
-        tw_draw_lines(p, f, r->pt, x + r->cap_w, vtop, w - r->cap_w, r->text, r->lines, r->n,
-                      TW_ALIGN_LEFT, TW_BLACK);
+        lines_in(ps, f, r->pt, x + r->cap_w, vtop, w - r->cap_w, r->text, r->lines, r->n,
+                 TW_ALIGN_LEFT);
         break;
     }
     case ROW_BOX: {
         double bh = r->h - 2 * r->space;
-        tw_draw_frame(p, (tw_box){x + 0.4 * s, y - bh, w - 0.8 * s, bh - 0.4 * s}, 0.2 * s,
-                      TW_BLACK);
-        tw_draw_lines(p, f, r->pt, x + 0.6 * s, y - 0.2 * s - r->space, w - 1.2 * s, r->text,
-                      r->lines, r->n, TW_ALIGN_CENTRE, TW_BLACK);
+        if (!ps->bold_pass)
+            tw_draw_frame(ps->p, (tw_box){x + 0.4 * s, y - bh, w - 0.8 * s, bh - 0.4 * s},
+                          0.2 * s, TW_BLACK);
+        lines_in(ps, f, r->pt, x + 0.6 * s, y - 0.2 * s - r->space, w - 1.2 * s, r->text,
+                 r->lines, r->n, TW_ALIGN_CENTRE);
         break;
     }
     default:
-        tw_draw_lines(p, f, r->pt, x, y, w, r->text, r->lines, r->n, r->align, TW_BLACK);
+        lines_in(ps, f, r->pt, x, y, w, r->text, r->lines, r->n, r->align);
     }
 }
 
 static void draw_block(HPDF_Page p, const tw_pdf_doc *d, const block *b)
 {
-    for (int i = 0; i < b->n; i++) {
-        const row *r = &b->rows[i];
-        tw_box box = b->regions[r->region];
-        draw_row(p, d, b, r, box.x, box.y + box.h - r->y - r->space, box.w);
+    for (int bold = 0; bold <= 1; bold++) {
+        pass ps = {p, d, bold};
+        for (int i = 0; i < b->n; i++) {
+            const row *r = &b->rows[i];
+            tw_box box = b->regions[r->region];
+            draw_row(&ps, b, r, box.x, box.y + box.h - r->y - r->space, box.w);
+        }
     }
 }
 
