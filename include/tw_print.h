@@ -33,9 +33,10 @@ typedef struct {
     const char *reason;         /* why new revisions were made; NULL for a plain print */
 } tw_print_opts;
 
-/* Labels per volume unless told otherwise: peak memory stays near 100 MiB however many labels
- * a run prints (measured in docs/performance.md). */
-#define TW_DEFAULT_VOLUME_SIZE 2000
+/* Labels per volume unless told otherwise: peak memory stays bounded however many labels a run
+ * prints, and volumes are small enough to spread evenly over the worker processes (measured in
+ * docs/performance.md). */
+#define TW_DEFAULT_VOLUME_SIZE 1000
 /* Largest volume: libharu 2.3.0 refuses a page tree of more than 32767 pages. */
 #define TW_MAX_VOLUME_SIZE 30000
 /* Most volumes in one run (three-digit numbers). */

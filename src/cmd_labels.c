@@ -28,7 +28,7 @@ static const char labels_usage[] =
     "  --draft     print buses with errors as watermarked drafts, not for posting\n"
     "  --layout    shipped layout name or layout file (default 4x6)\n"
     "  --date      print date on labels, manifest and PDF metadata (default today, UTC)\n"
-    "  --volume-size  labels per PDF volume (default 2000, at most 30000); more labels are\n"
+    "  --volume-size  labels per PDF volume (default 1000, at most 30000); more labels are\n"
     "              written as NAME-001.pdf, NAME-002.pdf, ...\n"
     "  --jobs      volumes drawn at once, each by a process of its own (default: one per\n"
     "              processor, at most 4); the output is the same whatever the number\n";

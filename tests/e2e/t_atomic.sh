@@ -98,7 +98,7 @@ for run_case in TERM:0.3 TERM:writing INT:0.3 INT:writing HUP:0.3 HUP:writing KI
         continue
     fi
     what="SIG$sig $([ "$when" = writing ] && echo "while writing" || echo "after ${when}s")"
-    extra=()
+    extra=(--volume-size "$N") # one PDF
     if [ -n "$volumes" ]; then
         what="$what, in volumes"
         extra=(--volume-size $((N / 4)))

@@ -246,7 +246,7 @@ KM="$TW_TMP/kill.manifest.json"
 cp "$KM" "$TW_TMP/kill.before.json"
 cp "$TW_TMP/kill.pdf" "$TW_TMP/kill.before.pdf"
 t0=$(date +%s.%N)
-"$TW_BIN" labels "$big" --out "$TW_TMP/kill.pdf" --manifest "$KM" --date 2026-12-02 >/dev/null 2>&1
+"$TW_BIN" labels "$big" --out "$TW_TMP/kill.pdf" --volume-size 1500 --manifest "$KM" --date 2026-12-02 >/dev/null 2>&1
 t1=$(date +%s.%N)
 entries_of() { python3 -c 'import json,sys; print(len(json.load(open(sys.argv[1]))["labels"]))' "$1"; }
 pages_of() { pdfinfo "$1" 2>/dev/null | awk '/^Pages:/ {print $2}'; }
@@ -257,7 +257,7 @@ for frac in 0.6 0.85 0.92 0.96 0.99; do
     cp "$TW_TMP/kill.before.json" "$KM"
     cp "$TW_TMP/kill.before.pdf" "$TW_TMP/kill.pdf"
     delay=$(awk -v a="$t0" -v b="$t1" -v f="$frac" 'BEGIN { printf "%.3f", (b - a) * f }')
-    "$TW_BIN" labels "$big" --out "$TW_TMP/kill.pdf" --manifest "$KM" --date 2026-12-02 >/dev/null 2>&1 &
+    "$TW_BIN" labels "$big" --out "$TW_TMP/kill.pdf" --volume-size 1500 --manifest "$KM" --date 2026-12-02 >/dev/null 2>&1 &
     pid=$!
     sleep "$delay"
     kill -9 "$pid" 2>/dev/null || true
