@@ -58,6 +58,7 @@ fi
 
 # Fonts: text WinAnsiEncoding can hold is shown in single-byte TrueType fonts; a description
 # outside it (Greek, an arrow, CJK) brings in the UTF-8 (Identity-H) font for that label only.
+# (DejaVu Sans has no CJK glyphs: this checks the fonts and the text layer, not the drawing.)
 fonts=$(pdffonts "$out" 2>/dev/null)
 contains "$fonts" "WinAnsi" "pdffonts: single-byte WinAnsi fonts for ASCII text"
 lacks "$fonts" "Identity-H" "pdffonts: no two-byte font when no text needs one"
