@@ -109,9 +109,14 @@ int tw_wrap(tw_font *f, double pt, const char *s, double w, tw_span *lines, int 
 double tw_fit_size(tw_font *f, const char *s, double w, int max_lines, double start_pt,
                    double min_pt);
 
-/* Draw one line (a span of s) with its left edge at x and its baseline at y. */
+/* Draw one line (a span of s) with its left edge at x and its baseline at y. Consecutive texts
+ * share one text object; the drawing primitives below close it, and so must a caller before
+ * any libharu call of its own that PDF forbids inside one (q/Q, cm, paths, images). */
 void tw_draw_text(HPDF_Page p, tw_font *f, double pt, double x, double y, const char *s,
                   size_t len, tw_rgb colour);
+
+/* Close the text object tw_draw_text() left open on p, if any (p may be NULL). */
+void tw_draw_end_text(HPDF_Page p);
 
 /* Draw wrapped lines top-down: the first line's top at top, aligned in [x, x+w]. */
 void tw_draw_lines(HPDF_Page p, tw_font *f, double pt, double x, double top, double w,

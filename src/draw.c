@@ -165,6 +165,7 @@ fail:
 
 HPDF_Page tw_pdf_doc_page(tw_pdf_doc *d, double w, double h)
 {
+    tw_draw_end_text(HPDF_GetCurrentPage(d->pdf));
     HPDF_Page p = HPDF_AddPage(d->pdf);
     if (p) {
         HPDF_Page_SetWidth(p, (HPDF_REAL)w);
@@ -177,6 +178,7 @@ int tw_pdf_doc_write(tw_pdf_doc *d, const char *path, const char *target, char *
                      size_t errlen)
 {
     char why[200];
+    tw_draw_end_text(HPDF_GetCurrentPage(d->pdf));
     if (tw_pdf_doc_check(d, why, sizeof why) != 0) {
         snprintf(err, errlen, "%s: not written: %s", target, why);
         return -1;
@@ -494,6 +496,15 @@ static void set_font(HPDF_Page p, HPDF_Font f, double pt)
     HPDF_Page_SetFontAndSize(p, f, (HPDF_REAL)pt);
 }
 
+/* Consecutive texts share one text object (BT ... ET): every primitive that draws a path or an
+ * image, and tw_draw_end_text(), closes it first, as PDF asks (no paths, images or q/Q inside
+ * BT/ET); libharu tracks the mode and reports any operator used in the wrong one. */
+void tw_draw_end_text(HPDF_Page p)
+{
+    if (p && HPDF_Page_GetGMode(p) == HPDF_GMODE_TEXT_OBJECT)
+        HPDF_Page_EndText(p);
+}
+
 void tw_draw_text(HPDF_Page p, tw_font *f, double pt, double x, double y, const char *s,
                   size_t len, tw_rgb colour)
 {
@@ -506,10 +517,10 @@ void tw_draw_text(HPDF_Page p, tw_font *f, double pt, double x, double y, const 
     HPDF_Font use = font_for(f, s, len, text);
     if (use) {
         set_fill(p, colour);
-        HPDF_Page_BeginText(p);
+        if (HPDF_Page_GetGMode(p) != HPDF_GMODE_TEXT_OBJECT)
+            HPDF_Page_BeginText(p);
         set_font(p, use, pt);
         HPDF_Page_TextOut(p, (HPDF_REAL)x, (HPDF_REAL)y, text);
-        HPDF_Page_EndText(p);
     }
     if (text != small)
         free(text);
@@ -521,8 +532,11 @@ void tw_draw_lines(HPDF_Page p, tw_font *f, double pt, double x, double top, dou
     double y = top - tw_baseline_drop(f, pt);
     for (int i = 0; i < n; i++, y -= pt * TW_LEADING) {
         const char *t = s + lines[i].start;
-        double lw = tw_text_width(f, pt, t, lines[i].len);
-        double lx = a == TW_ALIGN_LEFT ? x : a == TW_ALIGN_CENTRE ? x + (w - lw) / 2 : x + w - lw;
+        double lx = x;
+        if (a != TW_ALIGN_LEFT) {
+            double lw = tw_text_width(f, pt, t, lines[i].len);
+            lx = a == TW_ALIGN_CENTRE ? x + (w - lw) / 2 : x + w - lw;
+        }
         tw_draw_text(p, f, pt, lx, y, t, lines[i].len, colour);
     }
 }
@@ -531,6 +545,7 @@ void tw_draw_lines(HPDF_Page p, tw_font *f, double pt, double x, double top, dou
 
 void tw_draw_fill(HPDF_Page p, tw_box b, tw_rgb colour)
 {
+    tw_draw_end_text(p);
     set_fill(p, colour);
     HPDF_Page_Rectangle(p, (HPDF_REAL)b.x, (HPDF_REAL)b.y, (HPDF_REAL)b.w, (HPDF_REAL)b.h);
     HPDF_Page_Fill(p);
@@ -538,6 +553,7 @@ void tw_draw_fill(HPDF_Page p, tw_box b, tw_rgb colour)
 
 void tw_draw_frame(HPDF_Page p, tw_box b, double lw, tw_rgb colour)
 {
+    tw_draw_end_text(p);
     set_stroke(p, colour);
     HPDF_Page_SetLineWidth(p, (HPDF_REAL)lw);
     HPDF_Page_Rectangle(p, (HPDF_REAL)b.x, (HPDF_REAL)b.y, (HPDF_REAL)b.w, (HPDF_REAL)b.h);
@@ -547,6 +563,7 @@ void tw_draw_frame(HPDF_Page p, tw_box b, double lw, tw_rgb colour)
 void tw_draw_line(HPDF_Page p, double x0, double y0, double x1, double y1, double lw,
                   tw_rgb colour)
 {
+    tw_draw_end_text(p);
     set_stroke(p, colour);
     HPDF_Page_SetLineWidth(p, (HPDF_REAL)lw);
     HPDF_Page_MoveTo(p, (HPDF_REAL)x0, (HPDF_REAL)y0);
@@ -584,6 +601,7 @@ double tw_qr_module_pt(int modules, double side, double dpi, int min_dots)
  * a process-wide global, so it cannot run on two documents at once.) */
 int tw_draw_qr(HPDF_Doc pdf, HPDF_Page p, const tw_qr *q, double x, double y, double module)
 {
+    tw_draw_end_text(p);
     int n = q->width + 2 * TW_QR_QUIET_MODULES;
     size_t w = (size_t)q->width, cols = (w + 7) / 8 * 8, stride = cols / 8;
     size_t left = (cols - w) / 2;
@@ -616,6 +634,7 @@ int tw_draw_qr(HPDF_Doc pdf, HPDF_Page p, const tw_qr *q, double x, double y, do
 /* A polygon from n points, filled and stroked with round joins (rounded corners). */
 static void rounded_polygon(HPDF_Page p, const double *xy, int n, double lw, tw_rgb c)
 {
+    tw_draw_end_text(p);
     set_fill(p, c);
     set_stroke(p, c);
     HPDF_Page_SetLineWidth(p, (HPDF_REAL)lw);
@@ -631,6 +650,7 @@ static void rounded_polygon(HPDF_Page p, const double *xy, int n, double lw, tw_
 void tw_draw_alert_symbol(HPDF_Page p, double x, double y, double h, tw_rgb triangle,
                           tw_rgb mark)
 {
+    tw_draw_end_text(p);
     const double side = h * 2 / sqrt(3.0);
     const double cx = x + side / 2, cy = y + h / 3; /* incentre */
     const double round = h * 0.06;                  /* corner rounding = half the stroke */
@@ -712,6 +732,7 @@ double tw_draw_hazard_header(HPDF_Page p, const tw_pdf_doc *d, tw_box band, tw_s
 
 void tw_draw_watermark(HPDF_Page p, tw_font *f, tw_box area, const char *words, tw_rgb colour)
 {
+    tw_draw_end_text(p);
     size_t len = strlen(words);
     double unit = tw_text_width(f, 1, words, len);
     if (unit <= 0)

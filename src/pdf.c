@@ -235,6 +235,7 @@ static int fit_pair(const tw_pdf_doc *d, block *b, row *r, double w, double cap_
     if (r->pt == 0) {
         b->need = tw_text_width(f, min, r->text, strlen(r->text));
         b->have = avail * r->max_lines;
+        b->caption_failed = 0; /* the value, this time: the message must say so */
         return -1;
     }
     r->n = tw_wrap(f, r->pt, r->text, avail, r->lines, ROW_MAX_LINES);
@@ -423,9 +424,13 @@ static int fit_block(const tw_pdf_doc *d, block *b, const tw_layout *lay, tw_box
         snprintf(err, errlen, "label %s: the caption of %s does not fit the %s region at %g pt "
                  "(needs %.0f lines, has %.0f)", id, b->failed->what, region, min, b->need,
                  b->have);
-    else if (b->failed)
+    else if (b->failed && b->need > b->have)
         snprintf(err, errlen, "label %s: %s does not fit the %s region at %g pt (needs %.0f pt, "
                  "has %.0f pt)", id, b->failed->what, region, min, b->need, b->have);
+    else if (b->failed) /* long enough in all, but the lines break between words */
+        snprintf(err, errlen, "label %s: %s does not fit the %s region at %g pt (%.0f pt of "
+                 "text for %.0f pt of lines, which break only between words)", id,
+                 b->failed->what, region, min, b->need, b->have);
     else
         snprintf(err, errlen, "label %s: the body and study regions overflow at %g pt (need "
                  "%.0f pt more height: %.1f mm short)", id, min, b->over, b->over * 25.4 / 72);
@@ -1020,9 +1025,11 @@ int tw_label_doc_add_encoded(tw_label_doc *doc, const tw_label *label, const cha
         draw_sheet_marks(p, doc, ox, oy,
                          has(label, TW_L_EQUIPMENT_ID) ? label->value[TW_L_EQUIPMENT_ID]
                                                        : T(doc, TW_M_NO_EQUIPMENT_ID));
+        tw_draw_end_text(p);
         HPDF_Page_GSave(p);
         HPDF_Page_Concat(p, 1, 0, 0, 1, (HPDF_REAL)ox, (HPDF_REAL)oy);
         draw_label(p, doc, pl, label);
+        tw_draw_end_text(p);
         HPDF_Page_GRestore(p);
         if (tw_pdf_doc_check(&doc->pdf, why, sizeof why) != 0) {
             snprintf(err, errlen, "label %s: %s", label_id(label), why);

@@ -198,4 +198,11 @@ small smallfont '{"units":"in","label":{"width":4,"height":6},"margin":0.125,"he
 labels "$JOBS/results.csv" "$JOBS/site.json" "$TW_TMP/smallfont.json" "$TW_TMP/smallfont.pdf"
 expect_rc 1 "body text below 6 pt is refused"
 contains "$ERR" "the body text at 5.5 pt is 0.5 pt below the 6 pt legible minimum" "region and shortfall named"
+# A value that cannot fit is named as the value, not as its caption, and the message says why
+# when the text is short enough in all but its lines break only between words.
+labels "$JOBS/results.csv" "$TW_TMP/site-enes.json" 105x74mm "$TW_TMP/enes-small.pdf" --bus QB-MSS-SG01
+expect_rc 1 "a two-language label that does not fit 105 x 74 mm is refused"
+contains "$ERR" "label QB-MSS-SG01: glove_class does not fit the body region at 6 pt" "the value that does not fit is named"
+lacks "$ERR" "the caption of glove_class" "not its caption"
+check "no PDF for the refused label" test ! -e "$TW_TMP/enes-small.pdf"
 finish
