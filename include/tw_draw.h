@@ -36,6 +36,7 @@ typedef struct {
     HPDF_Font wide;             /* UTF-8; NULL until tw_font_wide() */
     unsigned short ascii[95];   /* widths of ' '..'~' in 1/1000 em */
     const unsigned short *high; /* code points of bytes 0x80..0xFF (the document's table) */
+    unsigned long *doc_error;   /* the document's error, set when text runs out of memory */
 } tw_font;
 
 typedef struct {

@@ -80,6 +80,7 @@ static int load_face(tw_pdf_doc *d, tw_font *f, const char *file, char *err, siz
     memset(f, 0, sizeof *f);
     f->pdf = d->pdf;
     f->high = d->high;
+    f->doc_error = &d->error;
     if (access(path, R_OK) != 0) {
         snprintf(err, errlen,
                  "%s: font not found (install fonts-dejavu-core or set TAGWRIGHT_FONTS to the "
@@ -291,6 +292,14 @@ static long to_winansi(const tw_font *f, const char *s, size_t len, char *out)
     return (long)n;
 }
 
+/* Out of memory while measuring or drawing text: recorded as the document's error, so that a
+ * page missing a text is never taken for a finished one (tw_pdf_doc_check refuses it). */
+static void text_oom(tw_font *f)
+{
+    if (f->doc_error && !*f->doc_error)
+        *f->doc_error = HPDF_FAILD_TO_ALLOC_MEM;
+}
+
 HPDF_Font tw_font_wide(tw_font *f)
 {
     if (!f->wide && f->ttf)
@@ -330,8 +339,10 @@ double tw_text_width(tw_font *f, double pt, const char *s, size_t len)
      * the same in both; the sum of glyph widths is all HPDF_Font_TextWidth adds). */
     char small[256];
     char *buf = len < sizeof small ? small : malloc(len + 1);
-    if (!buf)
+    if (!buf) {
+        text_oom(f);
         return 0;
+    }
     HPDF_Font use = font_for(f, s, len, buf);
     double w = 0;
     if (use) {
@@ -512,8 +523,10 @@ void tw_draw_text(HPDF_Page p, tw_font *f, double pt, double x, double y, const 
         return;
     char small[256];
     char *text = len < sizeof small ? small : malloc(len + 1);
-    if (!text)
-        return; /* out of memory: the caller's document check reports nothing drawn */
+    if (!text) {
+        text_oom(f);
+        return;
+    }
     HPDF_Font use = font_for(f, s, len, text);
     if (use) {
         set_fill(p, colour);
@@ -738,6 +751,8 @@ void tw_draw_watermark(HPDF_Page p, tw_font *f, tw_box area, const char *words, 
     if (unit <= 0)
         return;
     char *text = malloc(len + 1);
+    if (!text)
+        text_oom(f);
     HPDF_Font use = text ? font_for(f, words, len, text) : NULL;
     if (!use) {
         free(text);
