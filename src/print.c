@@ -509,10 +509,10 @@ static int start_workers(const tw_label *labels, size_t n, const tw_print_opts *
     return started;
 }
 
-/* Wait for every started worker. 0, or -1 with a message in err when one ended abnormally
- * (err is left alone when bad is already set). */
-static int wait_workers(const pid_t *pids, int started, int bad, char *err, size_t errlen)
+/* Wait for every started worker. 0, or -1 with a message in err when one ended abnormally. */
+static int wait_workers(const pid_t *pids, int started, char *err, size_t errlen)
 {
+    int bad = 0;
     for (int i = 0; i < started; i++) {
         int status;
         while (waitpid(pids[i], &status, 0) < 0 && errno == EINTR)
@@ -612,12 +612,15 @@ static int write_and_record(tw_manifest *m, const tw_label *labels, size_t n,
     int rc = started < workers ? TW_EXIT_IO : record_all(m, labels, n, o, p, mout, err, errlen);
     if (rc != TW_EXIT_OK)
         atomic_store(&s->prog->failed_min, 0); /* the workers stop at their next label */
-    char werr[512];
-    if (wait_workers(pids, started, rc != TW_EXIT_OK, werr, sizeof werr) != 0) {
+    char werr[512] = "";
+    int workers_bad = wait_workers(pids, started, werr, sizeof werr) != 0;
+    if (rc != TW_EXIT_OK)
+        return rc; /* this process's own failure; the workers were told to stop */
+    if (workers_bad) {
         snprintf(err, errlen, "%s", werr);
         return TW_EXIT_IO;
     }
-    return rc == TW_EXIT_OK ? volumes_outcome(p, s, n, err, errlen) : rc;
+    return volumes_outcome(p, s, n, err, errlen);
 }
 
 /* Rename every volume into place, in order, then the manifest, once all are written in full:

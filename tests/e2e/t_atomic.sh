@@ -130,6 +130,34 @@ for run_case in TERM:0.3 TERM:writing INT:0.3 INT:writing HUP:0.3 HUP:writing KI
             fail "$what: files left behind"
     }
 done
+# A worker process killed while the parent records the manifest: the run fails with exit 3 and
+# names it, and nothing is published (the parent's signal handler is not involved here).
+if [ -z "${TW_WRAP:-}" ]; then
+    set -m
+    "$TW_BIN" labels "$TW_TMP/big.csv" --out "$PDF" --date 2025-03-01 --volume-size $((N / 4)) \
+        --jobs 2 >/dev/null 2>"$TW_TMP/worker.err" &
+    parent=$!
+    set +m
+    child=""
+    for _ in $(seq 1 400); do
+        child=$(pgrep -P "$parent" 2>/dev/null | head -n 1)
+        [ -n "$child" ] && break
+        sleep 0.01
+    done
+    [ -n "$child" ] && kill -KILL "$child" 2>/dev/null || true
+    rc=0
+    wait "$parent" || rc=$?
+    if [ -z "$child" ]; then
+        fail "a killed worker: no worker process was seen"
+    else
+        [ "$rc" -eq 3 ] && ok "a killed worker fails the run (exit 3)" || fail "a killed worker: exit $rc"
+        contains "$(cat "$TW_TMP/worker.err")" "ended by signal 9" "a killed worker is named with its signal"
+        [ "$(sha256sum <"$PDF")" = "$before_pdf" ] && ok "a killed worker: the earlier PDF is intact" ||
+            fail "a killed worker: the earlier PDF changed"
+        only_outputs && ok "a killed worker: no volume or temporary file left" ||
+            fail "a killed worker: files left behind"
+    fi
+fi
 if has_tool qpdf; then
     check "the earlier PDF still passes qpdf --check" qpdf --check "$PDF"
 fi
