@@ -87,6 +87,7 @@ install: $(BIN)
 FUZZ_SECONDS ?= 10
 FUZZ_JOBS    ?= 1
 FUZZ_RUNS    ?=
+FUZZ_TIMEOUT ?= 10
 FUZZ_SRC      = $(wildcard tests/fuzz/fuzz_*.c)
 FUZZ_BINS     = $(FUZZ_SRC:tests/fuzz/%.c=$(BUILD)/fuzz/%)
 FUZZ_SAN      = -fsanitize=address,undefined -fno-sanitize-recover=all
@@ -101,7 +102,8 @@ fuzz-build: $(FUZZ_BINS)
 fuzz:
 	$(MAKE) CC=clang BUILD=build-fuzz OPT="-O2 -g -fno-omit-frame-pointer" \
 	  EXTRA_CFLAGS="-fsanitize=fuzzer-no-link $(FUZZ_SAN)" EXTRA_LDFLAGS="$(FUZZ_SAN)" fuzz-build
-	FUZZ_JOBS=$(FUZZ_JOBS) FUZZ_RUNS=$(FUZZ_RUNS) tests/fuzz/run build-fuzz $(FUZZ_SECONDS)
+	FUZZ_JOBS=$(FUZZ_JOBS) FUZZ_RUNS=$(FUZZ_RUNS) FUZZ_TIMEOUT=$(FUZZ_TIMEOUT) \
+	  tests/fuzz/run build-fuzz $(FUZZ_SECONDS)
 
 # The end-to-end tests with every run of the binary wrapped in valgrind (tests/e2e/lib.sh).
 VALGRIND = valgrind -q --error-exitcode=99 --leak-check=full \
