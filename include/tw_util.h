@@ -9,6 +9,7 @@
 
 #include <stdarg.h>
 #include <stddef.h>
+#include <stdint.h>
 
 /* Copy of s (NULL gives NULL). */
 char *tw_strdup(const char *s);
@@ -60,5 +61,9 @@ size_t tw_json_find_nul(const char *data, size_t len);
 
 /* Case-insensitive ASCII comparison. */
 int tw_strcaseeq(const char *a, const char *b);
+
+/* Length of the UTF-8 sequence at s (n bytes available) with its code point in *cp, or 0 when
+ * the bytes are not UTF-8 (overlong forms, surrogates and values above U+10FFFF included). */
+size_t tw_utf8_decode(const unsigned char *s, size_t n, uint32_t *cp);
 
 #endif

@@ -247,27 +247,6 @@ int tw_text_ok(const char *s)
     return 1;
 }
 
-/* UTF-8 decoding for text that tw_text_ok() accepted; a malformed byte decodes as 0xFFFD. */
-static size_t utf8_decode(const unsigned char *s, size_t avail, unsigned long *cp)
-{
-    unsigned char c = s[0];
-    size_t n = c < 0x80 ? 1 : (c >> 5) == 6 ? 2 : (c >> 4) == 14 ? 3 : (c >> 3) == 30 ? 4 : 0;
-    if (n == 0 || n > avail) {
-        *cp = 0xFFFD;
-        return 1;
-    }
-    unsigned long v = n == 1 ? c : c & (0x7F >> n);
-    for (size_t i = 1; i < n; i++) {
-        if ((s[i] & 0xC0) != 0x80) {
-            *cp = 0xFFFD;
-            return 1;
-        }
-        v = v << 6 | (s[i] & 0x3F);
-    }
-    *cp = v;
-    return n;
-}
-
 /* s[0..len) in WinAnsiEncoding into out (at least len bytes): the number of bytes written, or
  * -1 when a character has no code there (or is a control character). */
 static long to_winansi(const tw_font *f, const char *s, size_t len, char *out)
@@ -279,8 +258,11 @@ static long to_winansi(const tw_font *f, const char *s, size_t len, char *out)
             out[n++] = (char)u[i++];
             continue;
         }
-        unsigned long cp;
-        i += utf8_decode(u + i, len - i, &cp);
+        uint32_t cp;
+        size_t k = tw_utf8_decode(u + i, len - i, &cp);
+        if (k == 0)
+            return -1; /* not UTF-8: shown as it is, in the UTF-8 font */
+        i += k;
         int code = -1; /* control characters (C0, DEL, C1) have none */
         for (int c = 0; cp >= 0xA0 && c < 128 && code < 0; c++)
             if (f->high[c] == cp)

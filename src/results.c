@@ -103,38 +103,6 @@ static void mark_invalid(tw_row *r, tw_field f)
     r->invalid |= bit(f);
 }
 
-/* Length of the UTF-8 sequence at s (n bytes available) with its code point in *cp, or 0 when
- * the bytes are not UTF-8 (overlong forms, surrogates and values above U+10FFFF included). */
-static size_t utf8_decode(const unsigned char *s, size_t n, uint32_t *cp)
-{
-    size_t len;
-    uint32_t c, min;
-    if (s[0] < 0x80) {
-        *cp = s[0];
-        return 1;
-    }
-    if ((s[0] & 0xE0) == 0xC0) {
-        len = 2, c = s[0] & 0x1Fu, min = 0x80;
-    } else if ((s[0] & 0xF0) == 0xE0) {
-        len = 3, c = s[0] & 0x0Fu, min = 0x800;
-    } else if ((s[0] & 0xF8) == 0xF0) {
-        len = 4, c = s[0] & 0x07u, min = 0x10000;
-    } else {
-        return 0;
-    }
-    if (len > n)
-        return 0;
-    for (size_t i = 1; i < len; i++) {
-        if ((s[i] & 0xC0) != 0x80)
-            return 0;
-        c = (c << 6) | (s[i] & 0x3Fu);
-    }
-    if (c < min || c > 0x10FFFF || (c >= 0xD800 && c <= 0xDFFF))
-        return 0;
-    *cp = c;
-    return len;
-}
-
 /* C0 and C1 control characters and DEL. */
 static int is_control(uint32_t cp)
 {
@@ -150,7 +118,7 @@ char *tw_excerpt(const char *s, size_t len)
     size_t i = 0, o = 0;
     while (i < len && o < EXCERPT_BYTES) {
         uint32_t cp;
-        size_t n = utf8_decode(u + i, len - i, &cp);
+        size_t n = tw_utf8_decode(u + i, len - i, &cp);
         if (n == 0 || is_control(cp)) {
             out[o++] = '?';
             i += n ? n : 1;
@@ -200,7 +168,7 @@ static const char *text_problem(tw_field f, const char *v, uint32_t *bad_cp)
     size_t len = strlen(v);
     for (size_t i = 0; i < len;) {
         uint32_t cp;
-        size_t n = utf8_decode(u + i, len - i, &cp);
+        size_t n = tw_utf8_decode(u + i, len - i, &cp);
         if (n == 0)
             return "expected UTF-8 text, found bytes that are not UTF-8";
         if (is_control(cp) && !(cp == '\n' && allows_line_breaks(f))) {

@@ -183,3 +183,35 @@ char *tw_read_file(const char *path, size_t *len, char *err, size_t errlen)
     *len = n;
     return buf;
 }
+
+/* Length of the UTF-8 sequence at s (n bytes available) with its code point in *cp, or 0 when
+ * the bytes are not UTF-8 (overlong forms, surrogates and values above U+10FFFF included). */
+size_t tw_utf8_decode(const unsigned char *s, size_t n, uint32_t *cp)
+{
+    size_t len;
+    uint32_t c, min;
+    if (s[0] < 0x80) {
+        *cp = s[0];
+        return 1;
+    }
+    if ((s[0] & 0xE0) == 0xC0) {
+        len = 2, c = s[0] & 0x1Fu, min = 0x80;
+    } else if ((s[0] & 0xF0) == 0xE0) {
+        len = 3, c = s[0] & 0x0Fu, min = 0x800;
+    } else if ((s[0] & 0xF8) == 0xF0) {
+        len = 4, c = s[0] & 0x07u, min = 0x10000;
+    } else {
+        return 0;
+    }
+    if (len > n)
+        return 0;
+    for (size_t i = 1; i < len; i++) {
+        if ((s[i] & 0xC0) != 0x80)
+            return 0;
+        c = (c << 6) | (s[i] & 0x3Fu);
+    }
+    if (c < min || c > 0x10FFFF || (c >= 0xD800 && c <= 0xDFFF))
+        return 0;
+    *cp = c;
+    return len;
+}

@@ -41,6 +41,13 @@ static void default_volume_size_should_stay_within_the_limits(void **state)
     assert_true(TW_MAX_VOLUME_SIZE <= 32767);
 }
 
+static void open_doc(tw_pdf_doc *d)
+{
+    char err[256];
+    if (tw_pdf_doc_open(d, "2026-12-01", err, sizeof err) != 0)
+        fail_msg("%s", err);
+}
+
 static double libharu_width(HPDF_Font f, const char *s, double pt)
 {
     size_t len = strlen(s);
@@ -57,9 +64,7 @@ static void text_width_should_match_libharu_for_ascii_and_other_text(void **stat
 {
     (void)state;
     tw_pdf_doc d;
-    char err[256];
-    if (tw_pdf_doc_open(&d, "2026-12-01", err, sizeof err) != 0)
-        fail_msg("%s", err);
+    open_doc(&d);
     const char *ascii[] = {"Arc-flash boundary", "4 ft 9 in (1433 mm)", "~!@#$%^&*()_+{}|:<>?",
                            "", "x"};
     /* UTF-8 text and the same text in WinAnsiEncoding (NULL: it has no code there) */
@@ -95,8 +100,7 @@ static void draw_text_should_pick_the_single_byte_font_when_it_can(void **state)
     (void)state;
     tw_pdf_doc d;
     char err[256];
-    if (tw_pdf_doc_open(&d, "2026-12-01", err, sizeof err) != 0)
-        fail_msg("%s", err);
+    open_doc(&d);
     HPDF_Page p = tw_pdf_doc_page(&d, 288, 432);
     assert_non_null(p);
     const char *spanish = "PELIGRO \342\200\242 Energ\303\255a incidente";
