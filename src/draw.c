@@ -289,20 +289,39 @@ HPDF_Font tw_font_wide(tw_font *f)
     return f->wide;
 }
 
-/* The bytes to show for s[0..len) and the font to show them in: the single-byte font when every
+/* A text ready to show: its bytes and the font for them. The single-byte font when every
  * character has a WinAnsiEncoding code (all of the fixed English and Spanish text), else the
- * UTF-8 font with the text as it is. out holds at least len + 1 bytes; NULL when the UTF-8 font
- * cannot be made (libharu's error is recorded in the document). */
-static HPDF_Font font_for(tw_font *f, const char *s, size_t len, char *out)
+ * UTF-8 font with the text as it is. font is NULL when memory ran out (recorded as the
+ * document's error) or the UTF-8 font cannot be made (libharu's error is recorded). */
+typedef struct {
+    char small[256];
+    char *bytes;
+    HPDF_Font font;
+} shown;
+
+static void shown_make(tw_font *f, const char *s, size_t len, shown *t)
 {
-    long n = to_winansi(f, s, len, out);
-    if (n >= 0) {
-        out[n] = '\0';
-        return f->byte;
+    t->font = NULL;
+    t->bytes = len < sizeof t->small ? t->small : malloc(len + 1);
+    if (!t->bytes) {
+        text_oom(f);
+        return;
     }
-    memcpy(out, s, len);
-    out[len] = '\0';
-    return tw_font_wide(f);
+    long n = to_winansi(f, s, len, t->bytes);
+    if (n >= 0) {
+        t->bytes[n] = '\0';
+        t->font = f->byte;
+        return;
+    }
+    memcpy(t->bytes, s, len);
+    t->bytes[len] = '\0';
+    t->font = tw_font_wide(f);
+}
+
+static void shown_free(shown *t)
+{
+    if (t->bytes != t->small)
+        free(t->bytes);
 }
 
 double tw_text_width(tw_font *f, double pt, const char *s, size_t len)
@@ -319,21 +338,15 @@ double tw_text_width(tw_font *f, double pt, const char *s, size_t len)
         return (double)sum * pt / 1000.0;
     /* Other text: libharu's own measure, in the font that will show it (the glyph widths are
      * the same in both; the sum of glyph widths is all HPDF_Font_TextWidth adds). */
-    char small[256];
-    char *buf = len < sizeof small ? small : malloc(len + 1);
-    if (!buf) {
-        text_oom(f);
-        return 0;
-    }
-    HPDF_Font use = font_for(f, s, len, buf);
+    shown t;
+    shown_make(f, s, len, &t);
     double w = 0;
-    if (use) {
-        HPDF_TextWidth tw = HPDF_Font_TextWidth(use, (const HPDF_BYTE *)buf,
-                                                (HPDF_UINT)strlen(buf));
+    if (t.font) {
+        HPDF_TextWidth tw = HPDF_Font_TextWidth(t.font, (const HPDF_BYTE *)t.bytes,
+                                                (HPDF_UINT)strlen(t.bytes));
         w = tw.width * pt / 1000.0;
     }
-    if (buf != small)
-        free(buf);
+    shown_free(&t);
     return w;
 }
 
@@ -503,22 +516,16 @@ void tw_draw_text(HPDF_Page p, tw_font *f, double pt, double x, double y, const 
 {
     if (len == 0)
         return;
-    char small[256];
-    char *text = len < sizeof small ? small : malloc(len + 1);
-    if (!text) {
-        text_oom(f);
-        return;
-    }
-    HPDF_Font use = font_for(f, s, len, text);
-    if (use) {
+    shown t;
+    shown_make(f, s, len, &t);
+    if (t.font) {
         set_fill(p, colour);
         if (HPDF_Page_GetGMode(p) != HPDF_GMODE_TEXT_OBJECT)
             HPDF_Page_BeginText(p);
-        set_font(p, use, pt);
-        HPDF_Page_TextOut(p, (HPDF_REAL)x, (HPDF_REAL)y, text);
+        set_font(p, t.font, pt);
+        HPDF_Page_TextOut(p, (HPDF_REAL)x, (HPDF_REAL)y, t.bytes);
     }
-    if (text != small)
-        free(text);
+    shown_free(&t);
 }
 
 void tw_draw_lines(HPDF_Page p, tw_font *f, double pt, double x, double top, double w,
@@ -732,12 +739,11 @@ void tw_draw_watermark(HPDF_Page p, tw_font *f, tw_box area, const char *words, 
     double unit = tw_text_width(f, 1, words, len);
     if (unit <= 0)
         return;
-    char *text = malloc(len + 1);
-    if (!text)
-        text_oom(f);
-    HPDF_Font use = text ? font_for(f, words, len, text) : NULL;
+    shown t;
+    shown_make(f, words, len, &t);
+    HPDF_Font use = t.font;
     if (!use) {
-        free(text);
+        shown_free(&t);
         return;
     }
     double diag = hypot(area.w, area.h), angle = atan2(area.h, area.w);
@@ -754,9 +760,9 @@ void tw_draw_watermark(HPDF_Page p, tw_font *f, tw_box area, const char *words, 
     HPDF_Page_SetTextRenderingMode(p, HPDF_STROKE);
     HPDF_Page_SetTextMatrix(p, (HPDF_REAL)c, (HPDF_REAL)s, (HPDF_REAL)-s, (HPDF_REAL)c,
                             (HPDF_REAL)x0, (HPDF_REAL)y0);
-    HPDF_Page_ShowText(p, text);
+    HPDF_Page_ShowText(p, t.bytes);
     HPDF_Page_SetTextRenderingMode(p, HPDF_FILL);
     HPDF_Page_EndText(p);
     HPDF_Page_GRestore(p);
-    free(text);
+    shown_free(&t);
 }

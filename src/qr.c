@@ -50,28 +50,20 @@ static int is_unreserved(unsigned char c)
            c == '-' || c == '.' || c == '_' || c == '~';
 }
 
-static void sb_put_encoded(strbuf *b, const char *s)
+/* s percent-encoded (RFC 3986 section 2.1), in capitals when upper: QR alphanumeric mode holds
+ * 0-9, A-Z and " $%*+-./:" at 5.5 bits a character against 8 in byte mode (ISO/IEC 18004), so
+ * the hash in capitals after a '/' ({HASH}) costs 352 bits instead of 512. */
+static void sb_put_encoded(strbuf *b, const char *s, int upper)
 {
     static const char hex[] = "0123456789ABCDEF";
     for (const unsigned char *p = (const unsigned char *)(s ? s : ""); *p; p++) {
-        if (is_unreserved(*p)) {
-            sb_put(b, (const char *)p, 1);
+        unsigned char c = upper && *p >= 'a' && *p <= 'z' ? (unsigned char)(*p - 'a' + 'A') : *p;
+        if (is_unreserved(c)) {
+            sb_put(b, (const char *)&c, 1);
         } else {
-            char esc[3] = {'%', hex[*p >> 4], hex[*p & 15]};
+            char esc[3] = {'%', hex[c >> 4], hex[c & 15]};
             sb_put(b, esc, 3);
         }
-    }
-}
-
-/* The hash in capitals: QR alphanumeric mode holds 0-9, A-Z and " $%*+-./:" at 5.5 bits a
- * character, against 8 bits in byte mode (ISO/IEC 18004), so a hash in capitals after a '/'
- * costs 352 bits instead of 512. */
-static void put_upper(strbuf *b, const char *hex)
-{
-    for (const char *p = hex ? hex : ""; *p; p++) {
-        char c = *p >= 'a' && *p <= 'z' ? (char)(*p - 'a' + 'A') : *p;
-        if (is_unreserved((unsigned char)c))
-            sb_put(b, &c, 1);
     }
 }
 
@@ -87,18 +79,15 @@ static size_t expand_one(strbuf *b, const char *s, const char *study, const char
         if (strncmp(s, names[i], n) != 0)
             continue;
         if (i == 0) {
-            sb_put_encoded(b, study);
+            sb_put_encoded(b, study, 0);
         } else if (i == 1) {
-            sb_put_encoded(b, equipment);
+            sb_put_encoded(b, equipment, 0);
         } else if (i == 2) {
             char num[16];
             snprintf(num, sizeof num, "%d", revision);
             sb_put(b, num, strlen(num));
-        } else if (i == 3) {
-            sb_put_encoded(b, hash);
-            *saw_hash = 1;
         } else {
-            put_upper(b, hash);
+            sb_put_encoded(b, hash, i == 4); /* {hash}, {HASH} */
             *saw_hash = 1;
         }
         return n;
@@ -128,7 +117,7 @@ char *tw_qr_payload(const char *link_template, const char *study_id, const char 
     }
     if (!saw_hash) {
         sb_put(&b, "#sha256=", 8);
-        sb_put_encoded(&b, hash_hex);
+        sb_put_encoded(&b, hash_hex, 0);
     }
     return b.data;
 }
