@@ -23,6 +23,7 @@
 #include <stdint.h>
 
 #include "tw_diag.h"
+#include "tw_util.h"
 
 typedef enum {
     /* text fields */
@@ -90,7 +91,7 @@ tw_kind tw_field_kind(tw_field f);
 #define TW_MAX_ROWS 2000000
 
 typedef struct {
-    char *text[TW_F_COUNT];   /* text fields; NULL when absent */
+    char *text[TW_F_COUNT];   /* text fields; NULL when absent; in the results' arena */
     double num[TW_F_COUNT];   /* numeric and boolean fields, canonical units */
     uint32_t present;         /* bit f: field f has a value */
     uint32_t invalid;         /* bit f: field f was given but could not be read */
@@ -99,12 +100,14 @@ typedef struct {
     char *path;               /* JSON: path of the bus object, e.g. "buses[3]"; CSV: NULL */
     unsigned errors;          /* error findings recorded against this row */
     unsigned warnings;
+    tw_arena *strings;        /* where its text values live (the results' arena) */
 } tw_row;
 
 typedef struct {
     char *file;
     tw_row *rows;
     size_t count, cap;
+    tw_arena *strings;        /* every text value of every row; made by the first row */
 } tw_results;
 
 /* 1 when the row has a value for f. */
@@ -140,6 +143,14 @@ void tw_results_free(tw_results *r);
 /* Append a zeroed row (file set, line 0, no path). NULL when out of memory; the caller
  * enforces TW_MAX_ROWS. */
 tw_row *tw_results_add_row(tw_results *r);
+
+/* Make room for n rows in all, so that reading them does not move the array. -1 when out of
+ * memory (the array is unchanged). */
+int tw_results_reserve(tw_results *r, size_t n);
+
+/* Zero a row kept outside the array (a JSON file's study-wide values) whose text values live
+ * in r's arena, as the rows' do. -1 when out of memory. */
+int tw_row_init(tw_results *r, tw_row *row);
 
 /* Store a text value for column c: trimmed (empty means absent), then checked for length,
  * valid UTF-8 and control characters (line breaks only in description and location). A bad

@@ -17,6 +17,21 @@ char *tw_strdup(const char *s);
 /* Copy of the first n bytes of s, NUL-terminated. */
 char *tw_strndup(const char *s, size_t n);
 
+/* Strings that live and die together (the values of a results file: 1.4 million for a
+ * 100,000-bus study, where a malloc and a free each cost a tenth of `check`'s time). Freed all at
+ * once by tw_arena_free; a zeroed tw_arena is empty and ready. */
+typedef struct tw_arena_chunk tw_arena_chunk;
+typedef struct {
+    tw_arena_chunk *head; /* the chunk being filled; older chunks follow */
+    size_t used, cap;     /* bytes used and available in head's data */
+} tw_arena;
+
+/* Copy of the first n bytes of s, NUL-terminated, in the arena; NULL when out of memory. */
+char *tw_arena_strndup(tw_arena *a, const char *s, size_t n);
+
+/* Free every string of the arena; it is empty and ready again. */
+void tw_arena_free(tw_arena *a);
+
 /* printf into a fresh string; NULL when out of memory. */
 char *tw_asprintf(const char *fmt, ...)
 #if defined(__GNUC__)
@@ -39,6 +54,10 @@ char *tw_trim(char *s);
 
 /* Largest input file tagwright reads, in bytes (documented in docs/limits.md). */
 #define TW_MAX_INPUT_BYTES (512L * 1024 * 1024)
+
+/* A hint that the block p..p+n (a large array about to be filled) is best backed by huge
+ * pages; does nothing for small blocks or where unsupported. */
+void tw_advise_large(void *p, size_t n);
 
 /* Read a whole file into a NUL-terminated buffer. On failure returns NULL and writes a message
  * naming the path and the reason into err. */

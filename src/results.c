@@ -65,39 +65,56 @@ void tw_row_diag(tw_diags *d, tw_row *r, tw_severity sev, tw_field field, const 
         r->warnings++;
 }
 
-tw_row *tw_results_add_row(tw_results *r)
+int tw_results_reserve(tw_results *r, size_t n)
 {
-    if (r->count == r->cap) {
-        size_t cap = r->cap ? r->cap * 2 : 64;
-        tw_row *rows = realloc(r->rows, cap * sizeof *rows);
-        if (!rows)
-            return NULL;
-        r->rows = rows;
-        r->cap = cap;
-    }
-    tw_row *row = &r->rows[r->count++];
+    if (n <= r->cap)
+        return 0;
+    tw_row *rows = realloc(r->rows, n * sizeof *rows);
+    if (!rows)
+        return -1;
+    tw_advise_large(rows, n * sizeof *rows);
+    r->rows = rows;
+    r->cap = n;
+    return 0;
+}
+
+int tw_row_init(tw_results *r, tw_row *row)
+{
+    if (!r->strings && !(r->strings = calloc(1, sizeof *r->strings)))
+        return -1;
     memset(row, 0, sizeof *row);
     row->file = r->file;
+    row->strings = r->strings;
+    return 0;
+}
+
+tw_row *tw_results_add_row(tw_results *r)
+{
+    if (r->count == r->cap && tw_results_reserve(r, r->cap ? r->cap * 2 : 64) != 0)
+        return NULL;
+    tw_row *row = &r->rows[r->count];
+    if (tw_row_init(r, row) != 0)
+        return NULL;
+    r->count++;
     return row;
 }
 
 void tw_results_free(tw_results *r)
 {
-    for (size_t i = 0; i < r->count; i++) {
-        for (int f = 0; f < TW_F_COUNT; f++)
-            free(r->rows[i].text[f]);
+    for (size_t i = 0; i < r->count; i++)
         free(r->rows[i].path);
-    }
     free(r->rows);
     free(r->file);
+    if (r->strings)
+        tw_arena_free(r->strings);
+    free(r->strings);
     memset(r, 0, sizeof *r);
 }
 
 /* Forget a value that could not be read; validation then knows it was given, not missing. */
 static void mark_invalid(tw_row *r, tw_field f)
 {
-    free(r->text[f]);
-    r->text[f] = NULL;
+    r->text[f] = NULL; /* its bytes stay in the arena until the results are freed */
     r->num[f] = 0;
     r->present &= ~bit(f);
     r->invalid |= bit(f);
@@ -200,10 +217,9 @@ static int set_plain_ascii(tw_row *r, tw_field f, const char *s, size_t len)
             return 0;
     if (a == b)
         return 1;
-    char *v = tw_strndup(s + a, b - a);
+    char *v = r->strings ? tw_arena_strndup(r->strings, s + a, b - a) : NULL;
     if (!v)
         return 0;
-    free(r->text[f]);
     r->text[f] = v;
     r->present |= bit(f);
     return 1;
@@ -245,8 +261,14 @@ void tw_row_set_text(tw_row *r, const tw_column *c, const char *s, size_t len, t
     } else if (problem) {
         tw_row_diag(d, r, TW_ERROR, f, c->name, "%s", problem);
     } else {
-        free(r->text[f]);
-        r->text[f] = v;
+        char *kept = r->strings ? tw_arena_strndup(r->strings, v, n) : NULL;
+        free(v);
+        if (!kept) {
+            tw_row_diag(d, r, TW_ERROR, f, c->name, "out of memory");
+            mark_invalid(r, f);
+            return;
+        }
+        r->text[f] = kept;
         r->present |= bit(f);
         return;
     }

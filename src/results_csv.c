@@ -340,6 +340,12 @@ int tw_results_read_csv(const char *name, const char *data, size_t len, tw_resul
     const char *p = data, *end = data + len;
     if (len >= 3 && memcmp(p, "\xEF\xBB\xBF", 3) == 0)
         p += 3; /* UTF-8 byte order mark */
+    /* A row takes at least one line: room for that many rows at once (up to the limit), so
+     * the array never moves; without it the array grows as it goes. */
+    size_t lines = 1;
+    for (const char *q = p; (q = memchr(q, '\n', (size_t)(end - q))) != NULL; q++)
+        lines++;
+    (void)tw_results_reserve(out, lines < TW_MAX_ROWS ? lines : TW_MAX_ROWS);
     rd.line = 1;
     while (p < end && !rd.stop) {
         size_t n = (size_t)(end - p);

@@ -56,8 +56,7 @@ static const char *type_name(const cJSON *v)
 /* A value given but unusable: reported already; validation must not call it missing. */
 static void mark_invalid(tw_row *r, tw_field f)
 {
-    free(r->text[f]);
-    r->text[f] = NULL;
+    r->text[f] = NULL; /* its bytes stay in the arena until the results are freed */
     r->present &= ~(1u << f);
     r->invalid |= 1u << f;
 }
@@ -157,7 +156,7 @@ static void read_object(json_reader *jr, tw_row *r, const cJSON *obj)
 
 /* Study-level values fill what a bus leaves unset. A default that could not be read was
  * reported once at study.KEY; every bus inheriting it counts that error, so none is posted. */
-static int apply_defaults(tw_row *r, const tw_row *def)
+static void apply_defaults(tw_row *r, const tw_row *def)
 {
     for (int f = 0; f < TW_F_COUNT; f++) {
         uint32_t b = 1u << f;
@@ -167,24 +166,18 @@ static int apply_defaults(tw_row *r, const tw_row *def)
             r->invalid |= b;
             r->errors++;
         } else if (def->present & b) {
-            if (def->text[f] && !(r->text[f] = tw_strdup(def->text[f])))
-                return -1;
+            r->text[f] = def->text[f]; /* both in the results' arena */
             r->num[f] = def->num[f];
             r->present |= b;
         }
     }
-    return 0;
-}
-
-static void free_row(tw_row *r)
-{
-    for (int f = 0; f < TW_F_COUNT; f++)
-        free(r->text[f]);
-    free(r->path);
 }
 
 static void read_buses(json_reader *jr, const cJSON *buses, const tw_row *def)
 {
+    size_t n = (size_t)cJSON_GetArraySize(buses);
+    /* Room for every bus at once; without it the array grows as it goes. */
+    (void)tw_results_reserve(jr->out, n < TW_MAX_ROWS ? n : TW_MAX_ROWS);
     size_t i = 0;
     for (const cJSON *b = buses->child; b; b = b->next, i++) {
         char *path = tw_asprintf("buses[%zu]", i);
@@ -212,10 +205,7 @@ static void read_buses(json_reader *jr, const cJSON *buses, const tw_row *def)
         }
         r->path = path;
         read_object(jr, r, b);
-        if (apply_defaults(r, def) != 0) {
-            out_of_memory(jr, path);
-            return;
-        }
+        apply_defaults(r, def);
     }
 }
 
@@ -234,8 +224,10 @@ static void read_top_level(json_reader *jr, const cJSON *root)
             warn_unknown_key(jr, "$", key);
     }
     tw_row def;
-    memset(&def, 0, sizeof def);
-    def.file = jr->out->file;
+    if (tw_row_init(jr->out, &def) != 0) {
+        out_of_memory(jr, "study");
+        return;
+    }
     if (study && !cJSON_IsNull(study)) {
         if (!cJSON_IsObject(study)) {
             path_error(jr, "study", "expected an object of study-wide values");
@@ -251,7 +243,7 @@ static void read_top_level(json_reader *jr, const cJSON *root)
         path_error(jr, "buses", "expected an array of bus objects");
     else
         read_buses(jr, buses, &def);
-    free_row(&def);
+    free(def.path);
 }
 
 static long line_at(const char *s, size_t off)

@@ -1,4 +1,4 @@
-/* test_util.c - numbers, dates, the hash map, findings and atomic writes. */
+/* test_util.c - numbers, dates, the hash map, the string arena, findings and atomic writes. */
 #include "tw_test.h"
 
 #include <sys/stat.h>
@@ -75,6 +75,45 @@ static void map_should_find_every_key_after_growing(void **state)
     tw_map_free(&m);
 }
 
+/* Every string keeps its bytes while later ones fill, overflow and outgrow chunks: small ones
+ * (most values), empty ones, and ones larger than a chunk (a 64 KiB cell). */
+static void arena_should_keep_every_string_until_freed(void **state)
+{
+    (void)state;
+    enum { N = 200000 };
+    static char *kept[N];
+    static char big[100000];
+    memset(big, 'x', sizeof big);
+    tw_arena a = {0};
+    for (size_t i = 0; i < N; i++) {
+        char text[32];
+        int n = snprintf(text, sizeof text, "BUS-%zu", i);
+        if (i % 5000 == 0)
+            kept[i] = tw_arena_strndup(&a, big, sizeof big - i / 5000);
+        else if (i % 7 == 0)
+            kept[i] = tw_arena_strndup(&a, "", 0);
+        else
+            kept[i] = tw_arena_strndup(&a, text, (size_t)n);
+        assert_non_null(kept[i]);
+    }
+    for (size_t i = 0; i < N; i++) {
+        char text[32];
+        snprintf(text, sizeof text, "BUS-%zu", i);
+        if (i % 5000 == 0) {
+            assert_int_equal(strlen(kept[i]), sizeof big - i / 5000);
+            assert_int_equal(kept[i][0], 'x');
+        } else if (i % 7 == 0) {
+            assert_string_equal(kept[i], "");
+        } else {
+            assert_string_equal(kept[i], text);
+        }
+    }
+    tw_arena_free(&a);
+    assert_null(a.head);
+    assert_non_null(tw_arena_strndup(&a, "again", 5)); /* ready for use after a free */
+    tw_arena_free(&a);
+}
+
 static void finding_should_print_file_line_id_field_message(void **state)
 {
     (void)state;
@@ -129,6 +168,7 @@ int main(void)
         cmocka_unit_test(date_parse_should_check_that_the_day_exists),
         cmocka_unit_test(five_years_after_a_leap_day_should_be_28_february),
         cmocka_unit_test(map_should_find_every_key_after_growing),
+        cmocka_unit_test(arena_should_keep_every_string_until_freed),
         cmocka_unit_test(finding_should_print_file_line_id_field_message),
         cmocka_unit_test(atomic_write_should_replace_whole_and_refuse_directories),
     };
