@@ -57,6 +57,9 @@ typedef enum {
     TW_F_COUNT
 } tw_field;
 
+/* Text fields come first: a row keeps a string for each of them only. */
+#define TW_TEXT_FIELDS TW_F_NOMINAL_VOLTAGE_V
+
 typedef enum { TW_KIND_TEXT, TW_KIND_NUMBER, TW_KIND_INTEGER, TW_KIND_BOOL } tw_kind;
 
 /* One accepted column name. */
@@ -91,7 +94,7 @@ tw_kind tw_field_kind(tw_field f);
 #define TW_MAX_ROWS 2000000
 
 typedef struct {
-    char *text[TW_F_COUNT];   /* text fields; NULL when absent; in the results' arena */
+    char *text[TW_TEXT_FIELDS]; /* text fields; NULL when absent; in the results' arena */
     double num[TW_F_COUNT];   /* numeric and boolean fields, canonical units */
     uint32_t present;         /* bit f: field f has a value */
     uint32_t invalid;         /* bit f: field f was given but could not be read */

@@ -114,7 +114,8 @@ void tw_results_free(tw_results *r)
 /* Forget a value that could not be read; validation then knows it was given, not missing. */
 static void mark_invalid(tw_row *r, tw_field f)
 {
-    r->text[f] = NULL; /* its bytes stay in the arena until the results are freed */
+    if (f < TW_TEXT_FIELDS)
+        r->text[f] = NULL; /* its bytes stay in the arena until the results are freed */
     r->num[f] = 0;
     r->present &= ~bit(f);
     r->invalid |= bit(f);
@@ -228,8 +229,8 @@ static int set_plain_ascii(tw_row *r, tw_field f, const char *s, size_t len)
 void tw_row_set_text(tw_row *r, const tw_column *c, const char *s, size_t len, tw_diags *d)
 {
     tw_field f = c->field;
-    if (r->invalid & bit(f))
-        return;
+    if (f >= TW_TEXT_FIELDS || (r->invalid & bit(f)))
+        return; /* the first is a caller's mistake: a row keeps text for text fields only */
     if (memchr(s, '\0', len)) {
         tw_row_diag(d, r, TW_ERROR, f, c->name,
                     "expected printable text, found control character U+0000");

@@ -56,7 +56,8 @@ static const char *type_name(const cJSON *v)
 /* A value given but unusable: reported already; validation must not call it missing. */
 static void mark_invalid(tw_row *r, tw_field f)
 {
-    r->text[f] = NULL; /* its bytes stay in the arena until the results are freed */
+    if (f < TW_TEXT_FIELDS)
+        r->text[f] = NULL; /* its bytes stay in the arena until the results are freed */
     r->present &= ~(1u << f);
     r->invalid |= 1u << f;
 }
@@ -166,7 +167,8 @@ static void apply_defaults(tw_row *r, const tw_row *def)
             r->invalid |= b;
             r->errors++;
         } else if (def->present & b) {
-            r->text[f] = def->text[f]; /* both in the results' arena */
+            if (f < TW_TEXT_FIELDS)
+                r->text[f] = def->text[f]; /* both in the results' arena */
             r->num[f] = def->num[f];
             r->present |= b;
         }

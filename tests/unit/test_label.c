@@ -34,7 +34,8 @@ static void num(tw_row *r, tw_field f, double v)
 static void drop(tw_row *r, tw_field f)
 {
     r->present &= ~(1u << f);
-    r->text[f] = NULL;
+    if (f < TW_TEXT_FIELDS)
+        r->text[f] = NULL;
 }
 
 /* A 480 V switchgear bus of the fictional pump house study. */

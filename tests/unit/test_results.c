@@ -669,6 +669,9 @@ static void column_table_should_name_fields_and_units(void **state)
         assert_near(c->to_canonical, 1.0, 0);
     }
     assert_true(TW_F_COUNT <= 32); /* present/invalid are 32-bit masks */
+    /* a row keeps strings for the first TW_TEXT_FIELDS fields only: the text ones */
+    for (size_t i = 0; i < tw_column_count; i++)
+        assert_int_equal(tw_columns[i].kind == TW_KIND_TEXT, tw_columns[i].field < TW_TEXT_FIELDS);
 }
 
 int main(void)
