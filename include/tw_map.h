@@ -10,8 +10,13 @@
 #include <stddef.h>
 
 typedef struct {
-    const char **keys;
-    size_t *values;
+    const char *key;    /* NULL: an empty slot */
+    size_t hash;
+    size_t value;
+} tw_map_slot;
+
+typedef struct {
+    tw_map_slot *slots;
     size_t cap, count;
 } tw_map;
 
@@ -23,6 +28,13 @@ void tw_map_free(tw_map *m);
 
 /* Set key -> value, replacing an earlier value. 0 on success, -1 when out of memory. */
 int tw_map_put(tw_map *m, const char *key, size_t value);
+
+/* Room for n keys in all without growing. 0, or -1 when out of memory. */
+int tw_map_reserve(tw_map *m, size_t n);
+
+/* One lookup for "find or add": 1 and *found set when key is present (the map unchanged), 0
+ * when key -> value was added, -1 when out of memory. */
+int tw_map_get_or_put(tw_map *m, const char *key, size_t value, size_t *found);
 
 /* 1 and *value set when key is present, else 0. */
 int tw_map_get(const tw_map *m, const char *key, size_t *value);

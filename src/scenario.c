@@ -53,14 +53,13 @@ tw_row *tw_worst_case(tw_row *const *rows, size_t n)
 static size_t bus_for(tw_bus_set *s, const char *id)
 {
     size_t at;
-    if (tw_map_get(&s->index, id, &at))
-        return at;
-    at = s->count;
-    if (tw_map_put(&s->index, id, at) != 0)
+    int had = tw_map_get_or_put(&s->index, id, s->count, &at);
+    if (had < 0)
         return (size_t)-1;
-    s->buses[at].equipment_id = id;
-    s->count++;
-    return at;
+    if (had)
+        return at;
+    s->buses[s->count].equipment_id = id;
+    return s->count++;
 }
 
 int tw_bus_set_build(tw_results *r, tw_bus_set *out)
@@ -73,17 +72,22 @@ int tw_bus_set_build(tw_results *r, tw_bus_set *out)
     out->slots = malloc((n ? n : 1) * sizeof *out->slots);
     if (!owner || !out->buses || !out->slots)
         goto fail;
-    /* Pass 1: which bus each row belongs to, and how many rows each bus has. */
+    /* Pass 1: which bus each row belongs to, and how many rows each bus has. A bus's
+     * scenarios usually follow one another, so the previous row's bus is tried first. */
+    const char *prev_id = NULL;
+    size_t prev_bus = 0;
     for (size_t i = 0; i < n; i++) {
         const char *id = r->rows[i].text[TW_F_EQUIPMENT_ID];
         owner[i] = (size_t)-1;
         if (!id || !tw_row_has(&r->rows[i], TW_F_EQUIPMENT_ID))
             continue;
-        size_t b = bus_for(out, id);
+        size_t b = prev_id && strcmp(prev_id, id) == 0 ? prev_bus : bus_for(out, id);
         if (b == (size_t)-1)
             goto fail;
         owner[i] = b;
         out->buses[b].count++;
+        prev_id = id;
+        prev_bus = b;
     }
     /* Pass 2: each bus gets its stretch of slots, filled in input order. */
     size_t next = 0;

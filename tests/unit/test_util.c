@@ -72,6 +72,15 @@ static void map_should_find_every_key_after_growing(void **state)
     }
     size_t v;
     assert_int_equal(tw_map_get(&m, "BUS-X", &v), 0);
+    /* find-or-add: an existing key gives its value and is left alone; a new one is added */
+    assert_int_equal(tw_map_get_or_put(&m, keys[42], 7, &v), 1);
+    assert_int_equal(v, 42);
+    assert_int_equal(tw_map_get_or_put(&m, "BUS-X", 7, &v), 0);
+    assert_int_equal(tw_map_get(&m, "BUS-X", &v), 1);
+    assert_int_equal(v, 7);
+    assert_int_equal(tw_map_reserve(&m, 100000), 0);
+    assert_int_equal(tw_map_get(&m, keys[N - 1], &v), 1); /* kept through a resize */
+    assert_int_equal(v, N - 1);
     tw_map_free(&m);
 }
 
