@@ -601,12 +601,19 @@ double tw_qr_module_pt(int modules, double side, double dpi, int min_dots)
  * loader, HPDF_Image_LoadRaw1BitImageFromMem, is not used: a document freed without being
  * saved leaks its DecodeParms dictionary - checked with valgrind - and its encoder state is
  * a process-wide global, so it cannot run on two documents at once.) */
+/* Two bits a pixel (0 black, 3 white) rather than one: libharu stores a 1-bit image through
+ * its CCITT encoder, which took 8 % of the work of a label; a 2-bit image is deflated like every
+ * other stream. A row is padded to whole bytes with white pixels split between both sides. */
+#define QR_BITS 2
+#define QR_PIXELS_PER_BYTE (8 / QR_BITS)
+
 int tw_draw_qr(HPDF_Doc pdf, HPDF_Page p, const tw_qr *q, double x, double y, double module)
 {
     tw_draw_end_text(p);
     int n = q->width + 2 * TW_QR_QUIET_MODULES;
-    size_t w = (size_t)q->width, cols = (w + 7) / 8 * 8, stride = cols / 8;
-    size_t left = (cols - w) / 2;
+    size_t w = (size_t)q->width;
+    size_t cols = (w + QR_PIXELS_PER_BYTE - 1) / QR_PIXELS_PER_BYTE * QR_PIXELS_PER_BYTE;
+    size_t stride = cols / QR_PIXELS_PER_BYTE, left = (cols - w) / 2;
     unsigned char *bits = malloc(stride * w);
     if (!bits)
         return -1;
@@ -614,12 +621,15 @@ int tw_draw_qr(HPDF_Doc pdf, HPDF_Page p, const tw_qr *q, double x, double y, do
     for (size_t r = 0; r < w; r++) {
         const unsigned char *row = q->dark + r * w;
         unsigned char *out = bits + r * stride;
-        for (size_t c = 0; c < w; c++)
+        for (size_t c = 0; c < w; c++) {
+            size_t at = c + left;
+            unsigned shift = (unsigned)(QR_PIXELS_PER_BYTE - 1 - at % QR_PIXELS_PER_BYTE) * QR_BITS;
             if (row[c])
-                out[(c + left) >> 3] &= (unsigned char)~(0x80u >> ((c + left) & 7));
+                out[at / QR_PIXELS_PER_BYTE] &= (unsigned char)~(3u << shift);
+        }
     }
     HPDF_Image img = HPDF_LoadRawImageFromMem(pdf, bits, (HPDF_UINT)cols, (HPDF_UINT)w,
-                                              HPDF_CS_DEVICE_GRAY, 1);
+                                              HPDF_CS_DEVICE_GRAY, QR_BITS);
     free(bits);
     if (!img)
         return -1;
