@@ -513,6 +513,26 @@ void tw_draw_end_text(HPDF_Page p)
         HPDF_Page_EndText(p);
 }
 
+/* Two positions closer than this (in points; a millionth of an inch) are the same. */
+#define SAME_POSITION_PT 0.001
+
+/* Show text with its baseline starting at (x, y) inside a text object. A text one line
+ * (pt * TW_LEADING) below the start of the previous one, at the same x, is shown with the
+ * next-line operator (') rather than a move (Td): libharu clears a 512-byte buffer and formats
+ * two numbers for each move, and most lines of a label follow the one above. */
+static void show_at(HPDF_Page p, double pt, double x, double y, const char *bytes)
+{
+    HPDF_TransMatrix line = HPDF_Page_GetTextMatrix(p); /* start of the previous line */
+    double leading = pt * TW_LEADING;
+    if (fabs(x - line.x) < SAME_POSITION_PT && fabs(line.y - leading - y) < SAME_POSITION_PT) {
+        if (fabs(HPDF_Page_GetTextLeading(p) - leading) >= SAME_POSITION_PT)
+            HPDF_Page_SetTextLeading(p, (HPDF_REAL)leading);
+        HPDF_Page_ShowTextNextLine(p, bytes);
+    } else {
+        HPDF_Page_TextOut(p, (HPDF_REAL)x, (HPDF_REAL)y, bytes);
+    }
+}
+
 void tw_draw_text(HPDF_Page p, tw_font *f, double pt, double x, double y, const char *s,
                   size_t len, tw_rgb colour)
 {
@@ -525,7 +545,7 @@ void tw_draw_text(HPDF_Page p, tw_font *f, double pt, double x, double y, const 
         if (HPDF_Page_GetGMode(p) != HPDF_GMODE_TEXT_OBJECT)
             HPDF_Page_BeginText(p);
         set_font(p, t.font, pt);
-        HPDF_Page_TextOut(p, (HPDF_REAL)x, (HPDF_REAL)y, t.bytes);
+        show_at(p, pt, x, y, t.bytes);
     }
     shown_free(&t);
 }
