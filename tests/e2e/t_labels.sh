@@ -70,6 +70,25 @@ contains "$fonts" "Identity-H" "pdffonts: the UTF-8 font is embedded when a text
 contains "$(page_text "$TW_TMP/wide.pdf" 1)" "Lighting panel Ω → 照明 — café" "pdftotext reads back the text outside WinAnsiEncoding"
 contains "$(page_text "$TW_TMP/wide.pdf" 2)" "Motor control centre, line 2" "the other labels read back as before"
 
+# Lines that follow one another are shown with the next-line operator ('), not a move each;
+# pdftotext -bbox reads the caption lines back one leading (9 pt x 1.2 = 10.8 pt) apart.
+if has_tool qpdf; then
+    qpdf --qdf --object-streams=disable "$out" "$TW_TMP/labels-qdf.pdf"
+    nextline=$(grep -ac "^(Working distance) '$" "$TW_TMP/labels-qdf.pdf")
+    [ "$nextline" -ge 1 ] && ok "qpdf --qdf: a caption that follows the one above is shown with '" \
+        || fail "no caption shown with the next-line operator"
+fi
+pdftotext -bbox -f 2 -l 2 "$out" "$TW_TMP/bbox.html"
+gap=$(python3 - "$TW_TMP/bbox.html" <<'PY'
+import re, sys
+words = re.findall(r'<word xMin="[\d.]+" yMin="([\d.]+)"[^>]*>([^<]*)</word>', open(sys.argv[1]).read())
+y = {w: float(v) for v, w in words}
+print("%.3f" % (y["Working"] - y["Incident"]))
+PY
+)
+[ "$gap" = "10.800" ] && ok "pdftotext -bbox: consecutive captions are 10.8 pt apart" \
+    || fail "consecutive captions are $gap pt apart, expected 10.800"
+
 # --bus selects one label
 run labels "$TW_DATA/core/small.csv" --out "$TW_TMP/one.pdf" --bus E2E-SWGR-1 --date 2026-12-01
 expect_rc 0 "--bus prints one label"
