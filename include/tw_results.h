@@ -21,6 +21,7 @@
 
 #include <stddef.h>
 #include <stdint.h>
+#include <stdio.h>
 
 #include "tw_diag.h"
 #include "tw_util.h"
@@ -137,6 +138,13 @@ int tw_results_read_csv(const char *name, const char *data, size_t len, tw_resul
                         tw_diags *d);
 int tw_results_read_json(const char *name, const char *data, size_t len, tw_results *out,
                          tw_diags *d);
+
+/* CSV read from f in pieces, so the file is never held whole: buf (cap bytes) holds the first
+ * `have` bytes, already read, and is reused for the rest. size is the file's size when known
+ * (else 0), to size the row array. Returns as tw_results_read_csv; a read error, or a file
+ * larger than TW_MAX_INPUT_BYTES, is a finding and -1. */
+int tw_results_read_csv_stream(const char *name, FILE *f, char *buf, size_t have, size_t cap,
+                               size_t size, tw_results *out, tw_diags *d);
 
 /* Free every row. */
 void tw_results_free(tw_results *r);

@@ -10,6 +10,7 @@
 #include <stdarg.h>
 #include <stddef.h>
 #include <stdint.h>
+#include <stdio.h>
 
 /* Copy of s (NULL gives NULL). */
 char *tw_strdup(const char *s);
@@ -62,6 +63,16 @@ void tw_advise_large(void *p, size_t n);
 /* Read a whole file into a NUL-terminated buffer. On failure returns NULL and writes a message
  * naming the path and the reason into err. */
 char *tw_read_file(const char *path, size_t *len, char *err, size_t errlen);
+
+/* The same in steps, for a reader that looks at the start of a file before deciding how to read
+ * it. tw_open_input opens path (NULL and a message when it cannot, or it is a directory);
+ * tw_input_size is the size of a regular file (0 when unknown, as for a pipe); tw_read_rest
+ * reads what is left of f after the n bytes already in buf (a malloc'd block, or NULL with
+ * n 0), which it takes over: the whole, NUL-terminated, or NULL and a message. */
+FILE *tw_open_input(const char *path, char *err, size_t errlen);
+size_t tw_input_size(FILE *f);
+char *tw_read_rest(FILE *f, const char *path, char *buf, size_t n, size_t *len, char *err,
+                   size_t errlen);
 
 /* Most values in one JSON input (documented in docs/limits.md). cJSON holds each value in a
  * node of about 64 bytes, so without a limit a file of "[0,0,0,...]" would need 30 times its

@@ -3,6 +3,7 @@
 #include "tw_results.h"
 
 #include <ctype.h>
+#include <errno.h>
 #include <math.h>
 #include <stdarg.h>
 #include <stdint.h>
@@ -440,6 +441,15 @@ static int ends_with_json(const char *path)
     return n >= 5 && tw_strcaseeq(path + n - 5, ".json");
 }
 
+/* Only blanks (and a byte order mark) so far. */
+static int is_blank_text(const char *data, size_t len)
+{
+    size_t i = len >= 3 && memcmp(data, "\xEF\xBB\xBF", 3) == 0 ? 3 : 0;
+    while (i < len && (data[i] == ' ' || data[i] == '\t' || data[i] == '\r' || data[i] == '\n'))
+        i++;
+    return i == len;
+}
+
 static int looks_like_json(const char *data, size_t len)
 {
     size_t i = 0;
@@ -450,24 +460,65 @@ static int looks_like_json(const char *data, size_t len)
     return i < len && data[i] == '{';
 }
 
+/* A CSV file is read in pieces of this size; JSON (which cJSON parses whole) is read whole. */
+#define READ_PIECE ((size_t)256 * 1024)
+
+/* A finding for a file that could not be read; tw_read_file's messages start with the path,
+ * which the finding already names. */
+static int unreadable(const char *path, const char *err, tw_diags *d)
+{
+    size_t plen = strlen(path);
+    int named = strncmp(err, path, plen) == 0 && err[plen] == ':' && err[plen + 1] == ' ';
+    tw_source src = {path, 0, NULL};
+    tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "%s", named ? err + plen + 2 : err);
+    return -1;
+}
+
+/* Whether the file is JSON is decided from its first non-blank byte, so the first piece is
+ * read, and more while it is all blank. */
+static size_t read_first(FILE *f, char **buf, size_t *cap)
+{
+    size_t have = 0;
+    for (;;) {
+        have += fread(*buf + have, 1, *cap - have, f);
+        if (have < *cap || !is_blank_text(*buf, have))
+            return have;
+        char *nb = *cap < (size_t)TW_MAX_INPUT_BYTES ? realloc(*buf, *cap * 2) : NULL;
+        if (!nb)
+            return have;
+        *buf = nb;
+        *cap *= 2;
+    }
+}
+
 int tw_results_read(const char *path, tw_results *out, tw_diags *d)
 {
     memset(out, 0, sizeof *out);
     char err[1024] = "";
-    size_t len = 0;
-    char *data = tw_read_file(path, &len, err, sizeof err);
-    if (!data) {
-        /* tw_read_file's message starts with the path, which the finding already names */
-        size_t plen = strlen(path);
-        int named = strncmp(err, path, plen) == 0 && err[plen] == ':' && err[plen + 1] == ' ';
-        const char *reason = named ? err + plen + 2 : err;
-        tw_source src = {path, 0, NULL};
-        tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "%s", reason);
-        return -1;
+    FILE *f = tw_open_input(path, err, sizeof err);
+    if (!f)
+        return unreadable(path, err, d);
+    size_t cap = READ_PIECE;
+    char *buf = malloc(cap);
+    if (!buf) {
+        fclose(f);
+        return unreadable(path, "out of memory", d);
     }
-    int rc = ends_with_json(path) || looks_like_json(data, len)
-                 ? tw_results_read_json(path, data, len, out, d)
-                 : tw_results_read_csv(path, data, len, out, d);
-    free(data);
+    size_t have = read_first(f, &buf, &cap);
+    int rc;
+    if (ferror(f)) {
+        snprintf(err, sizeof err, "read error: %s", strerror(errno));
+        free(buf);
+        rc = unreadable(path, err, d);
+    } else if (ends_with_json(path) || looks_like_json(buf, have)) {
+        size_t len = 0;
+        char *data = tw_read_rest(f, path, buf, have, &len, err, sizeof err);
+        rc = data ? tw_results_read_json(path, data, len, out, d) : unreadable(path, err, d);
+        free(data);
+    } else {
+        rc = tw_results_read_csv_stream(path, f, buf, have, cap, tw_input_size(f), out, d);
+        free(buf);
+    }
+    fclose(f);
     return rc;
 }

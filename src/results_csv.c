@@ -8,6 +8,7 @@
 
 #include <csv.h>
 #include <ctype.h>
+#include <errno.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -41,6 +42,8 @@ typedef struct {
     unsigned file_errors; /* findings about the file as a whole (counted on every row) */
     int fatal;          /* not a results file, or out of memory: the read returns -1 */
     int stop;           /* reading has stopped */
+    int at_start;       /* only the first bom_matched bytes of a byte order mark fed yet */
+    size_t bom_matched;
 } csv_reader;
 
 /* An error about the file rather than one value: rows may be lost or ambiguous, so it counts
@@ -319,49 +322,144 @@ static void reader_free(csv_reader *rd)
     free(rd->cell_len);
 }
 
-int tw_results_read_csv(const char *name, const char *data, size_t len, tw_results *out,
-                        tw_diags *d)
+static int reader_open(csv_reader *rd, const char *name, tw_results *out, tw_diags *d)
 {
     memset(out, 0, sizeof *out);
     out->file = tw_strdup(name ? name : "-");
-    csv_reader rd;
-    memset(&rd, 0, sizeof rd);
-    rd.out = out;
-    rd.d = d;
-    if (!out->file || csv_init(&rd.parser, CSV_STRICT | CSV_STRICT_FINI) != 0) {
+    memset(rd, 0, sizeof *rd);
+    rd->out = out;
+    rd->d = d;
+    rd->line = 1;
+    rd->at_start = 1;
+    if (!out->file || csv_init(&rd->parser, CSV_STRICT | CSV_STRICT_FINI) != 0) {
         tw_source src = {name, 0, NULL};
         tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "out of memory");
         free(out->file);
         out->file = NULL;
         return -1;
     }
-    csv_set_space_func(&rd.parser, is_blank_char);
-    csv_set_term_func(&rd.parser, is_record_end);
-    const char *p = data, *end = data + len;
-    if (len >= 3 && memcmp(p, "\xEF\xBB\xBF", 3) == 0)
-        p += 3; /* UTF-8 byte order mark */
-    /* A row takes at least one line: room for that many rows at once (up to the limit), so
-     * the array never moves; without it the array grows as it goes. */
-    size_t lines = 1;
-    for (const char *q = p; (q = memchr(q, '\n', (size_t)(end - q))) != NULL; q++)
-        lines++;
-    (void)tw_results_reserve(out, lines < TW_MAX_ROWS ? lines : TW_MAX_ROWS);
-    rd.line = 1;
-    while (p < end && !rd.stop) {
+    csv_set_space_func(&rd->parser, is_blank_char);
+    csv_set_term_func(&rd->parser, is_record_end);
+    return 0;
+}
+
+/* The next bytes of the file, cut anywhere (libcsv keeps its state between calls). */
+static void feed_pieces(csv_reader *rd, const char *p, size_t len);
+
+/* A UTF-8 byte order mark at the start is skipped, even when it comes split over pieces: the
+ * bytes matched so far are held back, and fed after all when the mark turns out not to be one. */
+static const char bom[] = "\xEF\xBB\xBF";
+
+static size_t skip_bom(csv_reader *rd, const char *p, size_t len)
+{
+    size_t used = 0;
+    while (rd->at_start && used < len) {
+        if (p[used] != bom[rd->bom_matched]) {
+            rd->at_start = 0;
+            feed_pieces(rd, bom, rd->bom_matched);
+            return used;
+        }
+        used++;
+        if (++rd->bom_matched == 3)
+            rd->at_start = 0;
+    }
+    return used;
+}
+
+static void reader_feed(csv_reader *rd, const char *p, size_t len)
+{
+    size_t used = rd->at_start ? skip_bom(rd, p, len) : 0;
+    feed_pieces(rd, p + used, len - used);
+}
+
+static void feed_pieces(csv_reader *rd, const char *p, size_t len)
+{
+    const char *end = p + len;
+    while (p < end && !rd->stop) {
         size_t n = (size_t)(end - p);
         if (n > TW_MAX_CELL_BYTES)
             n = TW_MAX_CELL_BYTES;
         const char *nl = memchr(p, '\n', n);
         if (nl)
             n = (size_t)(nl - p) + 1;
-        feed(&rd, p, n);
+        feed(rd, p, n);
         p += n;
         if (nl)
-            rd.line++;
+            rd->line++;
     }
-    finish(&rd);
-    reader_free(&rd);
-    for (size_t i = 0; i < out->count; i++)
-        out->rows[i].errors += rd.file_errors;
-    return rd.fatal ? -1 : 0;
+}
+
+static int reader_close(csv_reader *rd)
+{
+    if (rd->at_start) /* the file ended inside what began like a byte order mark */
+        feed_pieces(rd, bom, rd->bom_matched);
+    finish(rd);
+    reader_free(rd);
+    for (size_t i = 0; i < rd->out->count; i++)
+        rd->out->rows[i].errors += rd->file_errors;
+    return rd->fatal ? -1 : 0;
+}
+
+/* Lines in data: a row takes at least one. */
+static size_t count_lines(const char *data, size_t len)
+{
+    size_t lines = 1;
+    for (const char *q = data, *end = data + len; (q = memchr(q, '\n', (size_t)(end - q)));
+         q++)
+        lines++;
+    return lines;
+}
+
+/* Room for that many rows at once (up to the limit), so that the array never moves; when the
+ * guess is short it grows as it goes. */
+static void reserve_rows(tw_results *out, size_t rows)
+{
+    (void)tw_results_reserve(out, rows < TW_MAX_ROWS ? rows : TW_MAX_ROWS);
+}
+
+int tw_results_read_csv(const char *name, const char *data, size_t len, tw_results *out,
+                        tw_diags *d)
+{
+    csv_reader rd;
+    if (reader_open(&rd, name, out, d) != 0)
+        return -1;
+    reserve_rows(out, count_lines(data, len));
+    reader_feed(&rd, data, len);
+    return reader_close(&rd);
+}
+
+int tw_results_read_csv_stream(const char *name, FILE *f, char *buf, size_t have, size_t cap,
+                               size_t size, tw_results *out, tw_diags *d)
+{
+    csv_reader rd;
+    if (reader_open(&rd, name, out, d) != 0)
+        return -1;
+    /* Rows in the whole file, guessed from the lines of the first piece. */
+    size_t lines = count_lines(buf, have);
+    reserve_rows(out, size > have ? (size_t)((double)lines * size / have * 1.05) + 64 : lines);
+    size_t total = have;
+    int bad = 0;
+    for (;;) {
+        reader_feed(&rd, buf, have);
+        if (have < cap || rd.stop)
+            break;
+        have = fread(buf, 1, cap, f);
+        total += have;
+        if (have == 0)
+            break;
+        if (total > (size_t)TW_MAX_INPUT_BYTES) {
+            tw_source src = {name, 0, NULL};
+            tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "larger than the %ld MiB limit",
+                        TW_MAX_INPUT_BYTES / (1024 * 1024));
+            bad = 1;
+            break;
+        }
+    }
+    if (ferror(f)) {
+        tw_source src = {name, 0, NULL};
+        tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "read error: %s", strerror(errno));
+        bad = 1;
+    }
+    int rc = reader_close(&rd);
+    return bad ? -1 : rc;
 }

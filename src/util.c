@@ -217,7 +217,7 @@ void tw_advise_large(void *p, size_t n)
 #endif
 }
 
-char *tw_read_file(const char *path, size_t *len, char *err, size_t errlen)
+FILE *tw_open_input(const char *path, char *err, size_t errlen)
 {
     FILE *f = fopen(path, "rb");
     if (!f) {
@@ -230,14 +230,33 @@ char *tw_read_file(const char *path, size_t *len, char *err, size_t errlen)
         fclose(f);
         return NULL;
     }
+    return f;
+}
+
+size_t tw_input_size(FILE *f)
+{
+    struct stat st;
+    if (fstat(fileno(f), &st) == 0 && S_ISREG(st.st_mode) && st.st_size > 0)
+        return (size_t)st.st_size;
+    return 0;
+}
+
+char *tw_read_rest(FILE *f, const char *path, char *buf, size_t n, size_t *len, char *err,
+                   size_t errlen)
+{
     /* A regular file is read into a buffer of its size (one more read sees the end); a pipe
      * grows the buffer as it goes. */
-    size_t cap = 65536, n = 0;
-    if (fstat(fileno(f), &st) == 0 && S_ISREG(st.st_mode) && st.st_size > 0 &&
-        st.st_size < TW_MAX_INPUT_BYTES)
-        cap = (size_t)st.st_size + 1;
-    char *buf = malloc(cap + 1);
-    tw_advise_large(buf, cap + 1);
+    size_t size = tw_input_size(f), cap = 65536;
+    if (size > 0 && size < (size_t)TW_MAX_INPUT_BYTES)
+        cap = size + 1;
+    if (cap <= n)
+        cap = n + 65536;
+    char *nb = realloc(buf, cap + 1);
+    if (!nb)
+        free(buf);
+    buf = nb;
+    if (buf && n == 0)
+        tw_advise_large(buf, cap + 1);
     while (buf) {
         size_t got = fread(buf + n, 1, cap - n, f);
         n += got;
@@ -257,15 +276,11 @@ char *tw_read_file(const char *path, size_t *len, char *err, size_t errlen)
             break;
         }
         cap *= 2;
-        char *nb = realloc(buf, cap + 1);
-        if (!nb) {
+        nb = realloc(buf, cap + 1);
+        if (!nb)
             free(buf);
-            buf = NULL;
-        } else {
-            buf = nb;
-        }
+        buf = nb;
     }
-    fclose(f);
     if (!buf) {
         if (!*err)
             snprintf(err, errlen, "%s: out of memory", path);
@@ -273,6 +288,16 @@ char *tw_read_file(const char *path, size_t *len, char *err, size_t errlen)
     }
     buf[n] = '\0';
     *len = n;
+    return buf;
+}
+
+char *tw_read_file(const char *path, size_t *len, char *err, size_t errlen)
+{
+    FILE *f = tw_open_input(path, err, errlen);
+    if (!f)
+        return NULL;
+    char *buf = tw_read_rest(f, path, NULL, 0, len, err, errlen);
+    fclose(f);
     return buf;
 }
 

@@ -5,6 +5,7 @@
 #include <unistd.h>
 
 #include "tw_results.h"
+#include "../same_results.h"
 
 /* ---- helpers ----------------------------------------------------------------------------- */
 
@@ -649,6 +650,54 @@ static void an_unreadable_file_should_be_an_error_naming_the_path(void **state)
     done(&r, &d);
 }
 
+/* Files are read in pieces (tw_results_read_csv_stream), tests and fuzzers give whole buffers:
+ * both must give the same rows, lines and findings, wherever a piece ends - inside a byte order
+ * mark, a quoted cell over several lines, a CRLF, a bad value or a broken quote. */
+static void csv_read_in_pieces_should_read_as_it_does_whole(void **state)
+{
+    (void)state;
+    const char *inputs[] = {
+        "\xEF\xBB\xBF" "equipment_id,nominal_voltage_v,arc_flash_boundary_mm\r\n"
+        "SWGR-A1,480,1200\r\n\r\nPNL-B2 , 208 ,300\r\n",
+        "equipment_id,description,incident_energy_cal_cm2\n"
+        "MCC-1,\"Motor control, line 1\nsecond line\n\nfourth\",7.81\n"
+        ",,\n"
+        "MCC-2,plain,abc\n"
+        "MCC-3,\"x\"\"y\",1e999\n",
+        "equipment_id,nominal_voltage_v\nA,1,2,3\nB,\"unterminated\n",
+        "equipment_id,nominal_voltage_v\nA,1\nB,x\"y\n C,2\n",
+        "nothing_known,at_all\n1,2\n",
+        "equipment_id,equipment_id\nA\n",
+        "\n\n   \n",
+        "equipment_id",
+    };
+    const size_t caps[] = {1, 2, 3, 5, 8, 64, 4096};
+    for (size_t k = 0; k < sizeof inputs / sizeof inputs[0]; k++) {
+        for (size_t c = 0; c < sizeof caps / sizeof caps[0]; c++) {
+            size_t len = strlen(inputs[k]);
+            tw_results whole, pieces;
+            tw_diags dw, dp;
+            tw_diags_init(&dw);
+            tw_diags_init(&dp);
+            int rw = tw_results_read_csv("in.csv", inputs[k], len, &whole, &dw);
+            FILE *f = fmemopen((void *)inputs[k], len, "r");
+            assert_non_null(f);
+            char *buf = malloc(caps[c]);
+            assert_non_null(buf);
+            size_t have = fread(buf, 1, caps[c], f);
+            int rp = tw_results_read_csv_stream("in.csv", f, buf, have, caps[c], len, &pieces, &dp);
+            fclose(f);
+            free(buf);
+            const char *differs = tw_same_results(&whole, &dw, &pieces, &dp);
+            if (rw != rp || differs)
+                fail_msg("input %zu in pieces of %zu bytes: %s differs", k, caps[c],
+                         differs ? differs : "the return value");
+            done(&whole, &dw);
+            done(&pieces, &dp);
+        }
+    }
+}
+
 static void column_table_should_name_fields_and_units(void **state)
 {
     (void)state;
@@ -678,6 +727,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(csv_with_bom_and_crlf_should_read_every_row),
+        cmocka_unit_test(csv_read_in_pieces_should_read_as_it_does_whole),
         cmocka_unit_test(quoted_commas_and_newlines_should_stay_in_the_description),
         cmocka_unit_test(line_numbers_should_count_lines_after_a_multiline_cell_and_blank_lines),
         cmocka_unit_test(unknown_column_should_be_warned_once_at_line_1),
