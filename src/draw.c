@@ -137,7 +137,9 @@ static int set_dates(tw_pdf_doc *d, const char *creation_date, char *err, size_t
 int tw_pdf_doc_open(tw_pdf_doc *d, const char *creation_date, char *err, size_t errlen)
 {
     memset(d, 0, sizeof *d);
-    d->pdf = HPDF_New(on_hpdf_error, d);
+    /* libharu's own memory pool (1 MiB blocks, freed with the document): a label makes some
+     * hundred small objects, which otherwise cost a malloc and a free each. */
+    d->pdf = HPDF_NewEx(on_hpdf_error, NULL, NULL, 1024 * 1024, d);
     if (!d->pdf) {
         snprintf(err, errlen, "cannot start a PDF document: out of memory");
         return -1;
