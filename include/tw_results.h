@@ -94,8 +94,18 @@ tw_kind tw_field_kind(tw_field f);
 /* Most rows in one results file (documented in docs/limits.md). */
 #define TW_MAX_ROWS 2000000
 
+/* Where the text values of a results file live: one arena, freed with the results, and the
+ * last value stored for each text field, which a later row giving the same value shares (a
+ * bus's scenario rows repeat its ID, description, location, study and date). */
 typedef struct {
-    char *text[TW_TEXT_FIELDS]; /* text fields; NULL when absent; in the results' arena */
+    tw_arena arena;
+    const char *last[TW_TEXT_FIELDS];
+    size_t last_len[TW_TEXT_FIELDS];
+} tw_text_store;
+
+typedef struct {
+    char *text[TW_TEXT_FIELDS]; /* text fields; NULL when absent; in the results' text store,
+                                 * possibly shared with other rows: never changed in place */
     double num[TW_F_COUNT];   /* numeric and boolean fields, canonical units */
     uint32_t present;         /* bit f: field f has a value */
     uint32_t invalid;         /* bit f: field f was given but could not be read */
@@ -104,14 +114,14 @@ typedef struct {
     char *path;               /* JSON: path of the bus object, e.g. "buses[3]"; CSV: NULL */
     unsigned errors;          /* error findings recorded against this row */
     unsigned warnings;
-    tw_arena *strings;        /* where its text values live (the results' arena) */
+    tw_text_store *strings;   /* where its text values live (the results') */
 } tw_row;
 
 typedef struct {
     char *file;
     tw_row *rows;
     size_t count, cap;
-    tw_arena *strings;        /* every text value of every row; made by the first row */
+    tw_text_store *strings;   /* every text value of every row; made by the first row */
 } tw_results;
 
 /* 1 when the row has a value for f. */

@@ -107,7 +107,7 @@ void tw_results_free(tw_results *r)
     free(r->rows);
     free(r->file);
     if (r->strings)
-        tw_arena_free(r->strings);
+        tw_arena_free(&r->strings->arena);
     free(r->strings);
     memset(r, 0, sizeof *r);
 }
@@ -200,6 +200,19 @@ static const char *text_problem(tw_field f, const char *v, uint32_t *bad_cp)
     return NULL;
 }
 
+/* A copy of s in the store, or the last value stored for field f when it is the same. */
+static char *store_text(tw_text_store *t, tw_field f, const char *s, size_t len)
+{
+    if (t->last[f] && t->last_len[f] == len && memcmp(t->last[f], s, len) == 0)
+        return (char *)t->last[f];
+    char *v = tw_arena_strndup(&t->arena, s, len);
+    if (v) {
+        t->last[f] = v;
+        t->last_len[f] = len;
+    }
+    return v;
+}
+
 /* The common case, taken without the general checks: after trimming, nothing but printable
  * ASCII (so no line break to normalise, nothing to decode, no control character), within the
  * length limit. 1 when the value was stored (or is empty, so absent), 0 to take the long way
@@ -219,7 +232,7 @@ static int set_plain_ascii(tw_row *r, tw_field f, const char *s, size_t len)
             return 0;
     if (a == b)
         return 1;
-    char *v = r->strings ? tw_arena_strndup(r->strings, s + a, b - a) : NULL;
+    char *v = r->strings ? store_text(r->strings, f, s + a, b - a) : NULL;
     if (!v)
         return 0;
     r->text[f] = v;
@@ -263,7 +276,7 @@ void tw_row_set_text(tw_row *r, const tw_column *c, const char *s, size_t len, t
     } else if (problem) {
         tw_row_diag(d, r, TW_ERROR, f, c->name, "%s", problem);
     } else {
-        char *kept = r->strings ? tw_arena_strndup(r->strings, v, n) : NULL;
+        char *kept = r->strings ? store_text(r->strings, f, v, n) : NULL;
         free(v);
         if (!kept) {
             tw_row_diag(d, r, TW_ERROR, f, c->name, "out of memory");
