@@ -650,6 +650,29 @@ static void an_unreadable_file_should_be_an_error_naming_the_path(void **state)
     done(&r, &d);
 }
 
+/* A value repeated from the row before (a bus's scenario rows) is stored once and shared; a
+ * different value, or the same one in another field, is not mixed up with it. */
+static void repeated_values_should_be_stored_once(void **state)
+{
+    (void)state;
+    tw_results r;
+    tw_diags d;
+    const char *csv = "equipment_id,description,location,scenario\n"
+                      "MCC-1,Motor control,Hall,max\n"
+                      "MCC-1,Motor control,Hall,min\n"
+                      "MCC-2,Hall,Motor control,min\n";
+    assert_int_equal(read_csv(csv, &r, &d), 0);
+    assert_int_equal(r.count, 3);
+    assert_ptr_equal(r.rows[0].text[TW_F_DESCRIPTION], r.rows[1].text[TW_F_DESCRIPTION]);
+    assert_ptr_equal(r.rows[0].text[TW_F_EQUIPMENT_ID], r.rows[1].text[TW_F_EQUIPMENT_ID]);
+    assert_string_equal(r.rows[1].text[TW_F_SCENARIO], "min");
+    assert_string_equal(r.rows[2].text[TW_F_EQUIPMENT_ID], "MCC-2");
+    assert_string_equal(r.rows[2].text[TW_F_DESCRIPTION], "Hall");
+    assert_string_equal(r.rows[2].text[TW_F_LOCATION], "Motor control");
+    assert_string_equal(r.rows[0].text[TW_F_LOCATION], "Hall");
+    done(&r, &d);
+}
+
 /* Files are read in pieces (tw_results_read_csv_stream), tests and fuzzers give whole buffers:
  * both must give the same rows, lines and findings, wherever a piece ends - inside a byte order
  * mark, a quoted cell over several lines, a CRLF, a bad value or a broken quote. */
@@ -728,6 +751,7 @@ int main(void)
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(csv_with_bom_and_crlf_should_read_every_row),
         cmocka_unit_test(csv_read_in_pieces_should_read_as_it_does_whole),
+        cmocka_unit_test(repeated_values_should_be_stored_once),
         cmocka_unit_test(quoted_commas_and_newlines_should_stay_in_the_description),
         cmocka_unit_test(line_numbers_should_count_lines_after_a_multiline_cell_and_blank_lines),
         cmocka_unit_test(unknown_column_should_be_warned_once_at_line_1),
