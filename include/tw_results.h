@@ -4,7 +4,8 @@
  * Every column tagwright knows is listed once in the column table (src/results_fields.c): its
  * name as the user writes it, the field it fills, its kind, and the factor that takes its unit to
  * the canonical one (lengths in millimetres, energy in cal/cm2, currents in kA, time in s).
- * Adding a field: add an enum value below (before TW_F_COUNT) and a row in that table.
+ * Adding a field: add an enum value below (a text field among the text fields, a number before
+ * TW_F_COUNT) and a row in that table.
  *
  * Readers never stop at the first bad value: a cell that cannot be parsed gets an error finding
  * (file and line, or JSON path, and the column name), the field is marked invalid, and reading
