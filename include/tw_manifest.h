@@ -18,6 +18,7 @@
 #include "tw_atomic.h"
 #include "tw_diag.h"
 #include "tw_map.h"
+#include "tw_util.h"
 
 typedef struct {
     char *equipment_id;
@@ -38,8 +39,9 @@ typedef struct {
 
 typedef struct {
     char *path;
-    tw_manifest_entry *entries;
+    tw_manifest_entry *entries; /* their strings live in `strings`, freed with the manifest */
     size_t count, cap;
+    tw_arena strings;
     tw_map current;             /* equipment_id -> index of its current entry */
     int lock_fd;
 } tw_manifest;

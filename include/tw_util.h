@@ -27,6 +27,9 @@ typedef struct {
     size_t used, cap;     /* bytes used and available in head's data */
 } tw_arena;
 
+/* n bytes from the arena, aligned for any type (16 bytes); NULL when out of memory. */
+void *tw_arena_alloc(tw_arena *a, size_t n);
+
 /* Copy of the first n bytes of s, NUL-terminated, in the arena; NULL when out of memory. */
 char *tw_arena_strndup(tw_arena *a, const char *s, size_t n);
 

@@ -34,7 +34,7 @@ char *tw_strndup(const char *s, size_t n)
 
 struct tw_arena_chunk {
     tw_arena_chunk *next;
-    char data[];
+    _Alignas(16) char data[];
 };
 
 static tw_arena_chunk *arena_chunk(size_t cap)
@@ -45,39 +45,52 @@ static tw_arena_chunk *arena_chunk(size_t cap)
     return c;
 }
 
-char *tw_arena_strndup(tw_arena *a, const char *s, size_t n)
+/* n bytes from the arena, at a multiple of align (a power of two) from the chunk's start. */
+static void *arena_take(tw_arena *a, size_t n, size_t align)
 {
-    if (n >= SIZE_MAX / 2)
+    if (n >= SIZE_MAX / 4)
         return NULL;
-    char *p;
-    if (a->head && a->cap - a->used > n) {
-        p = a->head->data + a->used;
-        a->used += n + 1;
-    } else if (a->head && n + 1 > a->cap / 4) {
-        /* A string of its own, behind the head so the head's free space stays usable. */
-        tw_arena_chunk *c = arena_chunk(n + 1);
+    size_t at = (a->used + align - 1) & ~(align - 1);
+    if (a->head && at <= a->cap && a->cap - at >= n) {
+        a->used = at + n;
+        return a->head->data + at;
+    }
+    if (a->head && n > a->cap / 4) {
+        /* A block of its own, behind the head so the head's free space stays usable. */
+        tw_arena_chunk *c = arena_chunk(n);
         if (!c)
             return NULL;
         c->next = a->head->next;
         a->head->next = c;
-        p = c->data;
-    } else {
-        size_t cap = a->cap ? a->cap * 2 : ARENA_FIRST_CHUNK;
-        if (cap > ARENA_LARGEST_CHUNK)
-            cap = ARENA_LARGEST_CHUNK;
-        while (cap < n + 1)
-            cap *= 2;
-        tw_arena_chunk *c = arena_chunk(cap);
-        if (!c)
-            return NULL;
-        c->next = a->head;
-        a->head = c;
-        a->cap = cap;
-        a->used = n + 1;
-        p = c->data;
+        return c->data;
     }
-    memcpy(p, s, n);
-    p[n] = '\0';
+    size_t cap = a->cap ? a->cap * 2 : ARENA_FIRST_CHUNK;
+    if (cap > ARENA_LARGEST_CHUNK)
+        cap = ARENA_LARGEST_CHUNK;
+    while (cap < n)
+        cap *= 2;
+    tw_arena_chunk *c = arena_chunk(cap);
+    if (!c)
+        return NULL;
+    c->next = a->head;
+    a->head = c;
+    a->cap = cap;
+    a->used = n;
+    return c->data;
+}
+
+void *tw_arena_alloc(tw_arena *a, size_t n)
+{
+    return arena_take(a, n ? n : 1, 16);
+}
+
+char *tw_arena_strndup(tw_arena *a, const char *s, size_t n)
+{
+    char *p = n < SIZE_MAX / 4 ? arena_take(a, n + 1, 1) : NULL;
+    if (p) {
+        memcpy(p, s, n);
+        p[n] = '\0';
+    }
     return p;
 }
 
