@@ -454,22 +454,18 @@ static int ends_with_json(const char *path)
     return n >= 5 && tw_strcaseeq(path + n - 5, ".json");
 }
 
-/* Only blanks (and a byte order mark) so far. */
-static int is_blank_text(const char *data, size_t len)
+/* Where the text starts: past a byte order mark and blanks (len when there is nothing else). */
+static size_t first_content(const char *data, size_t len)
 {
     size_t i = len >= 3 && memcmp(data, "\xEF\xBB\xBF", 3) == 0 ? 3 : 0;
     while (i < len && (data[i] == ' ' || data[i] == '\t' || data[i] == '\r' || data[i] == '\n'))
         i++;
-    return i == len;
+    return i;
 }
 
 static int looks_like_json(const char *data, size_t len)
 {
-    size_t i = 0;
-    if (len >= 3 && memcmp(data, "\xEF\xBB\xBF", 3) == 0)
-        i = 3;
-    while (i < len && (data[i] == ' ' || data[i] == '\t' || data[i] == '\r' || data[i] == '\n'))
-        i++;
+    size_t i = first_content(data, len);
     return i < len && data[i] == '{';
 }
 
@@ -494,7 +490,7 @@ static size_t read_first(FILE *f, char **buf, size_t *cap)
     size_t have = 0;
     for (;;) {
         have += fread(*buf + have, 1, *cap - have, f);
-        if (have < *cap || !is_blank_text(*buf, have))
+        if (have < *cap || first_content(*buf, have) < have)
             return have;
         char *nb = *cap < (size_t)TW_MAX_INPUT_BYTES ? realloc(*buf, *cap * 2) : NULL;
         if (!nb)

@@ -343,7 +343,7 @@ static int reader_open(csv_reader *rd, const char *name, tw_results *out, tw_dia
     return 0;
 }
 
-/* The next bytes of the file, cut anywhere (libcsv keeps its state between calls). */
+/* Bytes handed to feed() in pieces of at most one line. */
 static void feed_pieces(csv_reader *rd, const char *p, size_t len);
 
 /* A UTF-8 byte order mark at the start is skipped, even when it comes split over pieces: the
@@ -366,6 +366,7 @@ static size_t skip_bom(csv_reader *rd, const char *p, size_t len)
     return used;
 }
 
+/* The next bytes of the file, cut anywhere (libcsv keeps its state between calls). */
 static void reader_feed(csv_reader *rd, const char *p, size_t len)
 {
     size_t used = rd->at_start ? skip_bom(rd, p, len) : 0;
@@ -436,7 +437,9 @@ int tw_results_read_csv_stream(const char *name, FILE *f, char *buf, size_t have
         return -1;
     /* Rows in the whole file, guessed from the lines of the first piece. */
     size_t lines = count_lines(buf, have);
-    reserve_rows(out, size > have ? (size_t)((double)lines * size / have * 1.05) + 64 : lines);
+    if (have > 0 && size > have) /* (at most 1.05 x size: no overflow) */
+        lines = (size_t)((double)lines * (double)size / (double)have * 1.05) + 64;
+    reserve_rows(out, lines);
     size_t total = have;
     int bad = 0;
     for (;;) {
