@@ -183,6 +183,10 @@ void tw_row_set_text(tw_row *r, const tw_column *c, const char *s, size_t len, t
  * canonical unit. The same field already given in another unit must agree within 1 %. */
 void tw_row_set_number(tw_row *r, const tw_column *c, double v, tw_diags *d);
 
+/* Forget a value of field f that was given but could not be read: validation then knows it was
+ * given, not missing. */
+void tw_row_mark_invalid(tw_row *r, tw_field f);
+
 /* Parse a text cell by c's kind (text, decimal number, whole number, yes/no) and store it. */
 void tw_row_set_cell(tw_row *r, const tw_column *c, const char *s, size_t len, tw_diags *d);
 

@@ -510,7 +510,7 @@ static int start_workers(const tw_label *labels, size_t n, const tw_print_opts *
                          shared_run *s, int workers, pid_t *pids, char *err, size_t errlen)
 {
     /* QR encoder threads only on processors no worker has: with a worker per processor they
-     * cost more than they gave (10,000 labels on 2 processors: 8 % more CPU time, from
+     * cost more than they gave (10,000 labels on 2 processors: about 3 % more CPU time, from
      * hand-offs and context switches), so each worker then encodes its own codes. */
     long cpus = sysconf(_SC_NPROCESSORS_ONLN);
     int qr_threads = cpus > workers ? (int)((cpus - workers) / workers) : 0;

@@ -112,8 +112,7 @@ void tw_results_free(tw_results *r)
     memset(r, 0, sizeof *r);
 }
 
-/* Forget a value that could not be read; validation then knows it was given, not missing. */
-static void mark_invalid(tw_row *r, tw_field f)
+void tw_row_mark_invalid(tw_row *r, tw_field f)
 {
     if (f < TW_TEXT_FIELDS)
         r->text[f] = NULL; /* its bytes stay in the arena until the results are freed */
@@ -248,7 +247,7 @@ void tw_row_set_text(tw_row *r, const tw_column *c, const char *s, size_t len, t
     if (memchr(s, '\0', len)) {
         tw_row_diag(d, r, TW_ERROR, f, c->name,
                     "expected printable text, found control character U+0000");
-        mark_invalid(r, f);
+        tw_row_mark_invalid(r, f);
         return;
     }
     if (set_plain_ascii(r, f, s, len))
@@ -256,7 +255,7 @@ void tw_row_set_text(tw_row *r, const tw_column *c, const char *s, size_t len, t
     char *v = tw_strndup(s, len);
     if (!v) {
         tw_row_diag(d, r, TW_ERROR, f, c->name, "out of memory");
-        mark_invalid(r, f);
+        tw_row_mark_invalid(r, f);
         return;
     }
     tw_trim(v);
@@ -280,7 +279,7 @@ void tw_row_set_text(tw_row *r, const tw_column *c, const char *s, size_t len, t
         free(v);
         if (!kept) {
             tw_row_diag(d, r, TW_ERROR, f, c->name, "out of memory");
-            mark_invalid(r, f);
+            tw_row_mark_invalid(r, f);
             return;
         }
         r->text[f] = kept;
@@ -288,7 +287,7 @@ void tw_row_set_text(tw_row *r, const tw_column *c, const char *s, size_t len, t
         return;
     }
     free(v);
-    mark_invalid(r, f);
+    tw_row_mark_invalid(r, f);
 }
 
 /* Unit of a field that can be given in more than one unit, for messages. */
@@ -304,19 +303,19 @@ void tw_row_set_number(tw_row *r, const tw_column *c, double v, tw_diags *d)
         return;
     if (!isfinite(v)) {
         tw_row_diag(d, r, TW_ERROR, f, c->name, "expected a finite number");
-        mark_invalid(r, f);
+        tw_row_mark_invalid(r, f);
         return;
     }
     if (c->kind == TW_KIND_INTEGER && v != floor(v)) {
         tw_row_diag(d, r, TW_ERROR, f, c->name, "expected a whole number, got %g", v);
-        mark_invalid(r, f);
+        tw_row_mark_invalid(r, f);
         return;
     }
     double cv = v * c->to_canonical;
     if (!isfinite(cv)) { /* e.g. 1e307 ft: finite as given, infinite in mm */
         tw_row_diag(d, r, TW_ERROR, f, c->name,
                     "expected a number that stays finite in %s, got %g", canonical_unit(f), v);
-        mark_invalid(r, f);
+        tw_row_mark_invalid(r, f);
         return;
     }
     if (!(r->present & bit(f))) {
@@ -334,7 +333,7 @@ void tw_row_set_number(tw_row *r, const tw_column *c, double v, tw_diags *d)
                 "%g is %g %s, but another unit of the same field in this row gives %g %s; "
                 "expected both to agree (within 1 %%)",
                 v, cv, unit, old, unit);
-    mark_invalid(r, f);
+    tw_row_mark_invalid(r, f);
 }
 
 int tw_parse_yes_no(const char *s, int *out)
@@ -400,7 +399,7 @@ static void bad_cell(tw_row *r, const tw_column *c, const char *expected, const 
     tw_row_diag(d, r, TW_ERROR, c->field, c->name, "expected %s, got '%s'", expected,
                 ex ? ex : "?");
     free(ex);
-    mark_invalid(r, c->field);
+    tw_row_mark_invalid(r, c->field);
 }
 
 void tw_row_set_cell(tw_row *r, const tw_column *c, const char *s, size_t len, tw_diags *d)
@@ -423,7 +422,7 @@ void tw_row_set_cell(tw_row *r, const tw_column *c, const char *s, size_t len, t
     char *v = len < sizeof small ? small : tw_strndup(s, len);
     if (!v) {
         tw_row_diag(d, r, TW_ERROR, c->field, c->name, "out of memory");
-        mark_invalid(r, c->field);
+        tw_row_mark_invalid(r, c->field);
         return;
     }
     if (v == small) {

@@ -53,15 +53,6 @@ static const char *type_name(const cJSON *v)
     return "null";
 }
 
-/* A value given but unusable: reported already; validation must not call it missing. */
-static void mark_invalid(tw_row *r, tw_field f)
-{
-    if (f < TW_TEXT_FIELDS)
-        r->text[f] = NULL; /* its bytes stay in the arena until the results are freed */
-    r->present &= ~(1u << f);
-    r->invalid |= 1u << f;
-}
-
 static void wrong_type(json_reader *jr, tw_row *r, const tw_column *c, const char *expected,
                        const cJSON *v)
 {
@@ -74,7 +65,7 @@ static void wrong_type(json_reader *jr, tw_row *r, const tw_column *c, const cha
         tw_row_diag(jr->d, r, TW_ERROR, c->field, c->name, "expected %s, got %s", expected,
                     type_name(v));
     }
-    mark_invalid(r, c->field);
+    tw_row_mark_invalid(r, c->field);
 }
 
 /* One value of a bus (or of the study defaults); null is an absent value. */
@@ -145,7 +136,7 @@ static void read_object(json_reader *jr, tw_row *r, const cJSON *obj)
             if (seen[k]) {
                 tw_row_diag(jr->d, r, TW_ERROR, c->field, c->name,
                             "key given twice in one object; expected it once");
-                mark_invalid(r, c->field);
+                tw_row_mark_invalid(r, c->field);
                 continue;
             }
             seen[k] = 1;
