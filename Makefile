@@ -7,8 +7,10 @@
 #   make valgrind   the end-to-end tests with the binary run under valgrind
 #   make install    PREFIX=/usr/local DESTDIR=
 #
-# Every src/*.c except main.c goes into build/libtagwright.a; every tests/unit/test_*.c is one
-# cmocka test program linked against it. New modules and tests need no change here.
+# Every src/STAGE/*.c goes into build/libtagwright.a; src/main.c is the command table; every
+# tests/unit/test_*.c is one cmocka test program linked against the library. The stages are
+# base <- read <- rules <- write <- cli: `make layers` fails when an #include points from an
+# earlier stage to a later one. New modules and tests need no change here.
 
 CC      ?= cc
 PREFIX  ?= /usr/local
@@ -24,19 +26,22 @@ CFLAGS  += $(CSTD) $(WARN) $(OPT) $(EXTRA_CFLAGS)
 LDLIBS  += -lhpdf -lcsv $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lcjson -lqrencode -lcrypto) -lpng -lz -lm -lpthread
 LDFLAGS += $(EXTRA_LDFLAGS)
 
-LIB_SRC  = $(filter-out src/main.c,$(wildcard src/*.c))
+STAGES   = base read rules write cli
+LIB_SRC  = $(foreach s,$(STAGES),$(wildcard src/$(s)/*.c))
 LIB_OBJ  = $(LIB_SRC:src/%.c=$(BUILD)/obj/%.o)
+HEADERS  = $(wildcard include/*/*.h)
 TEST_SRC = $(wildcard tests/unit/test_*.c)
 TESTS    = $(TEST_SRC:tests/unit/%.c=$(BUILD)/tests/%)
 BIN      = $(BUILD)/tagwright
 
-.PHONY: all demo check unit e2e asan-check deps install clean fuzz fuzz-build valgrind bench
+.PHONY: all demo check unit e2e asan-check deps install clean fuzz fuzz-build valgrind bench layers
 all: $(BIN)
 
 # V=1 shows the full commands.
 Q = $(if $(V),,@)
 
-$(BUILD)/obj/%.o: src/%.c $(wildcard include/*.h) | $(BUILD)/obj
+$(BUILD)/obj/%.o: src/%.c $(HEADERS)
+	@mkdir -p $(@D)
 	@$(if $(V),true,echo "  CC    $<")
 	$(Q)$(CC) $(CPPFLAGS) $(CFLAGS) -c -o $@ $<
 
@@ -51,7 +56,7 @@ $(BUILD)/tests/%: tests/unit/%.c tests/unit/tw_test.h tests/same_results.h $(BUI
 	@$(if $(V),true,echo "  TEST  $@")
 	$(Q)$(CC) $(CPPFLAGS) -Itests/unit $(CFLAGS) $(LDFLAGS) -o $@ $< $(BUILD)/libtagwright.a $(LDLIBS) -lcmocka
 
-$(BUILD)/obj $(BUILD)/tests:
+$(BUILD)/tests:
 	mkdir -p $@
 
 deps:
@@ -73,7 +78,7 @@ asan-check:
 	  EXTRA_CFLAGS="-fsanitize=address,undefined -fno-sanitize-recover=all" \
 	  EXTRA_LDFLAGS="-fsanitize=address,undefined" unit e2e
 
-check: unit e2e asan-check
+check: layers unit e2e asan-check
 	@echo "make check: all test suites passed"
 
 install: $(BIN)
@@ -111,6 +116,10 @@ VALGRIND = valgrind -q --error-exitcode=99 --leak-check=full \
 
 valgrind: $(BIN)
 	TW_WRAP="$(VALGRIND)" TW_BIN=$(CURDIR)/$(BIN) tests/e2e/run
+
+# Earlier stages never include later ones (scripts/layers; DEVELOPERS.md "Code layout").
+layers:
+	scripts/layers
 
 clean:
 	rm -rf build build-asan build-fuzz out

@@ -1,10 +1,8 @@
 /* main.c - tagwright's entry point: a table of subcommands over the public headers. */
-#include <stdarg.h>
 #include <stdio.h>
 #include <string.h>
 
-#include "tw_cli.h"
-#include "tw_date.h"
+#include "cli/tw_cli.h"
 
 #ifndef TW_VERSION
 #define TW_VERSION "0.1.0"
@@ -56,26 +54,6 @@ static int cmd_version(int argc, char **argv)
     (void)argv;
     printf("tagwright %s\n", TW_VERSION);
     return TW_EXIT_OK;
-}
-
-int tw_usage_error(const char *cmd, const char *fmt, ...)
-{
-    va_list ap;
-    fprintf(stderr, "tagwright %s: ", cmd);
-    va_start(ap, fmt);
-    vfprintf(stderr, fmt, ap);
-    va_end(ap);
-    fprintf(stderr, "\n");
-    return TW_EXIT_USAGE;
-}
-
-int tw_option_date(const char *value, char *buf)
-{
-    tw_date d;
-    if (tw_date_parse(value, &d) != 0 || strlen(value) != 10)
-        return -1;
-    tw_date_format(d, buf);
-    return 0;
 }
 
 int main(int argc, char **argv)

@@ -8,8 +8,8 @@
 
 #include <string.h>
 
-#include "tw_diag.h"
-#include "tw_results.h"
+#include "base/tw_diag.h"
+#include "read/tw_results.h"
 
 static inline int tw_same_text(const char *a, const char *b)
 {

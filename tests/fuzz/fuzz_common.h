@@ -15,13 +15,13 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include "tw_diag.h"
-#include "tw_label.h"
-#include "tw_qr.h"
-#include "tw_results.h"
-#include "tw_scenario.h"
-#include "tw_site.h"
-#include "tw_validate.h"
+#include "base/tw_diag.h"
+#include "rules/tw_label.h"
+#include "write/tw_qr.h"
+#include "read/tw_results.h"
+#include "rules/tw_scenario.h"
+#include "read/tw_site.h"
+#include "rules/tw_validate.h"
 
 /* A sink for printed findings, opened once per process. */
 static inline FILE *fuzz_sink(void)

@@ -4,8 +4,8 @@
 #include <stdint.h>
 
 #include "fuzz_common.h"
-#include "tw_job.h"
-#include "tw_permit.h"
+#include "read/tw_job.h"
+#include "write/tw_permit_pdf.h"
 
 int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size);
 

@@ -5,7 +5,7 @@
 #include <stdint.h>
 
 #include "fuzz_common.h"
-#include "tw_layout.h"
+#include "write/tw_layout.h"
 
 int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size);
 

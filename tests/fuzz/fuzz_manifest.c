@@ -4,7 +4,7 @@
 #include <stdint.h>
 
 #include "fuzz_common.h"
-#include "tw_manifest.h"
+#include "write/tw_manifest.h"
 
 int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size);
 

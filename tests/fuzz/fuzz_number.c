@@ -6,7 +6,7 @@
 #include <stdint.h>
 
 #include "fuzz_common.h"
-#include "tw_util.h"
+#include "base/tw_util.h"
 
 int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size);
 

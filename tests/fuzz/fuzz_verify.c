@@ -7,7 +7,7 @@
 #include <unistd.h>
 
 #include "fuzz_common.h"
-#include "tw_cli.h"
+#include "cli/tw_cli.h"
 
 int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size);
 

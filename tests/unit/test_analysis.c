@@ -7,12 +7,12 @@
  */
 #include "tw_test.h"
 
-#include "tw_analysis.h"
-#include "tw_label.h"
-#include "tw_results.h"
-#include "tw_scenario.h"
-#include "tw_site.h"
-#include "tw_validate.h"
+#include "rules/tw_analysis.h"
+#include "rules/tw_label.h"
+#include "read/tw_results.h"
+#include "rules/tw_scenario.h"
+#include "read/tw_site.h"
+#include "rules/tw_validate.h"
 
 /* ---- infinite bus ----------------------------------------------------------------------- */
 

@@ -3,8 +3,8 @@
  * invented. */
 #include "tw_test.h"
 
-#include "tw_job.h"
-#include "tw_util.h"
+#include "read/tw_job.h"
+#include "base/tw_util.h"
 
 typedef struct {
     tw_jobs jobs;

@@ -6,9 +6,9 @@
  */
 #include "tw_test.h"
 
-#include "tw_label.h"
-#include "tw_results.h"
-#include "tw_site.h"
+#include "rules/tw_label.h"
+#include "read/tw_results.h"
+#include "read/tw_site.h"
 
 typedef struct {
     tw_row row;

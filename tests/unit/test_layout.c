@@ -1,10 +1,10 @@
 /* test_layout.c - layouts: the built-in 4 x 6 in label, the shipped file, and refusals. */
 #include "tw_test.h"
 
-#include "tw_layout.h"
-#include "tw_label.h"
-#include "tw_qr.h"
-#include "tw_util.h"
+#include "write/tw_layout.h"
+#include "rules/tw_label.h"
+#include "write/tw_qr.h"
+#include "base/tw_util.h"
 
 static int box_inside(tw_box b, const tw_layout *l)
 {

@@ -3,7 +3,7 @@
  * tested with the analysis module (test_analysis.c). */
 #include "tw_test.h"
 
-#include "tw_lifecycle.h"
+#include "rules/tw_lifecycle.h"
 
 /* ---- rescaling by clearing time: E_new = E_old x t_new / t_old ---- */
 

@@ -3,8 +3,8 @@
 
 #include <unistd.h>
 
-#include "tw_manifest.h"
-#include "tw_util.h"
+#include "write/tw_manifest.h"
+#include "base/tw_util.h"
 
 static tw_manifest_print print_of(const char *id, const char *hash, const char *content,
                                   const char *date, int page)

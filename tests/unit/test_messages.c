@@ -2,9 +2,10 @@
  * placeholders, listed in docs/messages.md; language codes; filling and joining. */
 #include "tw_test.h"
 
-#include "tw_draw.h"
-#include "tw_messages.h"
-#include "tw_util.h"
+#include "write/tw_pdf_doc.h"
+#include "base/tw_text.h"
+#include "rules/tw_messages.h"
+#include "base/tw_util.h"
 
 static const tw_lang all_langs[] = {TW_LANG_EN, TW_LANG_ES};
 

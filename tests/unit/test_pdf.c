@@ -11,10 +11,10 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
-#include "tw_label.h"
-#include "tw_pdf.h"
-#include "tw_qr.h"
-#include "tw_util.h"
+#include "rules/tw_label.h"
+#include "write/tw_label_pdf.h"
+#include "write/tw_qr.h"
+#include "base/tw_util.h"
 
 /* ---- fixtures ----------------------------------------------------------------------------- */
 

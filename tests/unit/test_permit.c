@@ -6,14 +6,14 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
-#include "tw_job.h"
-#include "tw_label.h"
-#include "tw_permit.h"
-#include "tw_qr.h"
-#include "tw_results.h"
-#include "tw_scenario.h"
-#include "tw_site.h"
-#include "tw_util.h"
+#include "read/tw_job.h"
+#include "rules/tw_label.h"
+#include "write/tw_permit_pdf.h"
+#include "write/tw_qr.h"
+#include "read/tw_results.h"
+#include "rules/tw_scenario.h"
+#include "read/tw_site.h"
+#include "base/tw_util.h"
 
 /* ---- file names --------------------------------------------------------------------------- */
 

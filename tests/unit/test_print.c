@@ -1,8 +1,8 @@
 /* test_print.c - volume names and the measuring shortcuts the print path relies on. */
 #include "tw_test.h"
 
-#include "tw_draw.h"
-#include "tw_print.h"
+#include "write/tw_pdf_doc.h"
+#include "write/tw_print_run.h"
 
 static void check_volume(const char *out, size_t v, const char *want)
 {

@@ -1,7 +1,7 @@
 /* test_qr.c - QR payloads (placeholders, percent-encoding, content hash) and encoding. */
 #include "tw_test.h"
 
-#include "tw_qr.h"
+#include "write/tw_qr.h"
 
 #define HASH "0123456789abcdef0123456789abcdef0123456789abcdef0123456789abcdef"
 #define HASH_UPPER "0123456789ABCDEF0123456789ABCDEF0123456789ABCDEF0123456789ABCDEF"

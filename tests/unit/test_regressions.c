@@ -2,13 +2,13 @@
  * the public entry points, so each stays fixed. Equipment and study names are fictional. */
 #include "tw_test.h"
 
-#include "tw_job.h"
-#include "tw_label.h"
-#include "tw_permit.h"
-#include "tw_results.h"
-#include "tw_scenario.h"
-#include "tw_site.h"
-#include "tw_util.h"
+#include "read/tw_job.h"
+#include "rules/tw_label.h"
+#include "write/tw_permit_pdf.h"
+#include "read/tw_results.h"
+#include "rules/tw_scenario.h"
+#include "read/tw_site.h"
+#include "base/tw_util.h"
 
 /* Read CSV text, group it and derive the first bus's label. Returns tw_label_derive's result
  * (or -2 when reading failed); *errors receives every error finding counted. */

@@ -4,7 +4,7 @@
 
 #include <unistd.h>
 
-#include "tw_results.h"
+#include "read/tw_results.h"
 #include "../same_results.h"
 
 /* ---- helpers ----------------------------------------------------------------------------- */

@@ -2,7 +2,7 @@
  * exactly what the general paths give (strtod; trim and the UTF-8 checks). */
 #include "tw_test.h"
 
-#include "tw_results.h"
+#include "read/tw_results.h"
 
 /* A small deterministic generator (xorshift64), so the cases are the same on every run. */
 static uint64_t rng = 88172645463325252ULL;

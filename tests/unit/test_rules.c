@@ -6,8 +6,8 @@
  */
 #include "tw_test.h"
 
-#include "tw_rules.h"
-#include "tw_site.h"
+#include "rules/tw_rules.h"
+#include "read/tw_site.h"
 
 /* ---- NFPA 70E (2024) Table 130.4(E)(a), AC approach boundaries (from memory) ---- */
 

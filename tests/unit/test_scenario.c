@@ -1,9 +1,9 @@
 /* test_scenario.c - grouping rows into buses and choosing the worst case of each. */
 #include "tw_test.h"
 
-#include "tw_results.h"
-#include "tw_rules.h"
-#include "tw_scenario.h"
+#include "read/tw_results.h"
+#include "rules/tw_rules.h"
+#include "rules/tw_scenario.h"
 
 static int read_csv(const char *text, tw_results *r, tw_diags *d)
 {

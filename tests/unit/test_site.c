@@ -2,8 +2,8 @@
  * name the JSON path. */
 #include "tw_test.h"
 
-#include "tw_qr.h"
-#include "tw_site.h"
+#include "write/tw_qr.h"
+#include "read/tw_site.h"
 
 typedef struct {
     tw_site site;

@@ -4,11 +4,11 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
-#include "tw_atomic.h"
-#include "tw_date.h"
-#include "tw_diag.h"
-#include "tw_map.h"
-#include "tw_util.h"
+#include "base/tw_atomic.h"
+#include "base/tw_date.h"
+#include "base/tw_diag.h"
+#include "base/tw_map.h"
+#include "base/tw_util.h"
 
 static void parse_double_should_accept_plain_decimals_only(void **state)
 {

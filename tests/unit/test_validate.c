@@ -1,11 +1,11 @@
 /* test_validate.c - checks on study results before anything is posted. */
 #include "tw_test.h"
 
-#include "tw_results.h"
-#include "tw_rules.h"
-#include "tw_scenario.h"
-#include "tw_site.h"
-#include "tw_validate.h"
+#include "read/tw_results.h"
+#include "rules/tw_rules.h"
+#include "rules/tw_scenario.h"
+#include "read/tw_site.h"
+#include "rules/tw_validate.h"
 
 /* A study, its buses and findings, read and validated in one go. */
 typedef struct {

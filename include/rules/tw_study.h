@@ -1,0 +1,31 @@
+/*
+ * tw_study.h - the read and validate stages in one call, shared by every command that starts
+ * from a results file: site settings, results, buses grouped by equipment ID, findings.
+ *
+ * tw_study_free() accepts a zeroed study.
+ */
+#ifndef TW_STUDY_H
+#define TW_STUDY_H
+
+#include "base/tw_diag.h"
+#include "read/tw_results.h"
+#include "rules/tw_scenario.h"
+#include "read/tw_site.h"
+
+typedef struct {
+    tw_site site;
+    tw_results results;
+    tw_bus_set buses;
+    tw_diags diags;
+    int site_bad;       /* the site file had errors */
+    int unreadable;     /* a file could not be read at all (I/O) */
+} tw_study;
+
+/* Load site settings (site_path may be NULL: defaults) and results, group and validate.
+ * Returns 0 when everything could be read (findings may still hold errors), -1 when a file was
+ * unreadable, malformed beyond use, or memory ran out. */
+int tw_study_load(tw_study *s, const char *results_path, const char *site_path);
+
+void tw_study_free(tw_study *s);
+
+#endif

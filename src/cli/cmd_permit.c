@@ -1,0 +1,361 @@
+/* cmd_permit.c - `tagwright permit RESULTS --job JOB.json --out permit.pdf`: energized work
+ * permit drafts for the jobs in a job file, with the study values of the label each equipment
+ * carries.
+ *
+ * Every job is checked before anything is written: an unknown equipment ID, a bus with data
+ * errors or a bad job file refuses the whole run (exit 1, no file). A permit for equipment where
+ * no PPE level is adequate is still drafted and says so, and the run exits 3. */
+#include <errno.h>
+#include <getopt.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include "base/tw_atomic.h"
+#include "cli/tw_cli.h"
+#include "base/tw_date.h"
+#include "read/tw_job.h"
+#include "rules/tw_label.h"
+#include "write/tw_manifest.h"
+#include "write/tw_permit_pdf.h"
+#include "write/tw_qr.h"
+#include "rules/tw_study.h"
+#include "base/tw_util.h"
+
+static const char permit_usage[] =
+    "usage: tagwright permit RESULTS --job JOB.json [--site SITE.json] [--out PATH]\n"
+    "                        [--manifest M.json] [--date YYYY-MM-DD] [--paper letter|a4]\n"
+    "  --job       job file: one job object, or an array of jobs (a batch)\n"
+    "  --out       one job: the PDF to write (default permit-WORKORDER.pdf);\n"
+    "              a batch: the directory for permit-WORKORDER.pdf files (default .)\n"
+    "  --manifest  the labels manifest: the QR code names the posted label's revision\n"
+    "              (without it, revision 1 is assumed)\n"
+    "  --date      drafting date on the permit and in the PDF (default today, UTC)\n"
+    "  --paper     page size (default letter)\n"
+    "exit status: 0 written; 1 bad data (nothing written); 2 usage; 3 I/O error, or a permit\n"
+    "drafted for equipment where no PPE the site stocks is adequate\n";
+
+typedef struct {
+    const char *results, *job, *site, *out, *manifest;
+    tw_paper paper;
+    char date[11];
+} permit_args;
+
+static int parse_args(int argc, char **argv, permit_args *a)
+{
+    static const struct option opts[] = {
+        {"job", required_argument, NULL, 'j'},      {"site", required_argument, NULL, 's'},
+        {"out", required_argument, NULL, 'o'},      {"manifest", required_argument, NULL, 'm'},
+        {"date", required_argument, NULL, 't'},     {"paper", required_argument, NULL, 'p'},
+        {"help", no_argument, NULL, 'h'},           {NULL, 0, NULL, 0},
+    };
+    memset(a, 0, sizeof *a);
+    tw_date_format(tw_date_today(), a->date);
+    int c;
+    optind = 1;
+    while ((c = getopt_long(argc, argv, "j:s:o:m:t:p:h", opts, NULL)) != -1) {
+        switch (c) {
+        case 'j': a->job = optarg; break;
+        case 's': a->site = optarg; break;
+        case 'o': a->out = optarg; break;
+        case 'm': a->manifest = optarg; break;
+        case 't':
+            if (tw_option_date(optarg, a->date) != 0)
+                return tw_usage_error("permit", "--date: expected YYYY-MM-DD, got '%s'", optarg);
+            break;
+        case 'p':
+            if (!strcmp(optarg, "letter"))
+                a->paper = TW_PAPER_LETTER;
+            else if (!strcmp(optarg, "a4"))
+                a->paper = TW_PAPER_A4;
+            else
+                return tw_usage_error("permit", "--paper: expected letter or a4, got '%s'",
+                                      optarg);
+            break;
+        case 'h': fputs(permit_usage, stdout); return -1;
+        default: return tw_usage_error("permit", "unknown option; see 'tagwright permit --help'");
+        }
+    }
+    if (optind != argc - 1)
+        return tw_usage_error("permit", "expected one results file (CSV or JSON); see "
+                              "'tagwright permit --help'");
+    a->results = argv[optind];
+    if (!a->job)
+        return tw_usage_error("permit", "--job JOB.json is required (docs/permit.md)");
+    return 0;
+}
+
+/* One job on its way to a PDF. */
+typedef struct {
+    const tw_job *job;
+    const tw_bus *bus;
+    tw_label label;
+    char *path;
+    char *payload;
+    int revision;
+    int refused;
+} draft;
+
+typedef struct {
+    const permit_args *a;
+    tw_study *st;
+    tw_jobs jobs;
+    tw_manifest manifest;
+    int have_manifest;
+    draft *drafts;
+} run_state;
+
+static void print_finding_for(const tw_diags *d, const char *eq, unsigned char *printed)
+{
+    for (size_t i = 0; i < d->count; i++) {
+        const tw_diag *g = &d->items[i];
+        if (printed[i] || (g->equipment_id && strcmp(g->equipment_id, eq) != 0))
+            continue;
+        tw_diag_print(g, stderr);
+        printed[i] = 1;
+    }
+}
+
+/* Look up each job's bus and derive its label; refuses what cannot be drafted. */
+static size_t derive_all(run_state *R)
+{
+    size_t refused = 0;
+    unsigned char *printed = calloc(R->st->diags.count + 1, 1);
+    for (size_t i = 0; i < R->jobs.count; i++) {
+        draft *dr = &R->drafts[i];
+        const tw_job *j = dr->job = &R->jobs.jobs[i];
+        dr->bus = tw_bus_set_find(&R->st->buses, j->equipment_id);
+        if (!dr->bus) {
+            fprintf(stderr, "%s:%s%sequipment_id: error: %s: equipment_id: not in the results %s; "
+                    "expected "
+                    "the equipment ID of a bus in the study\n", R->jobs.file, j->path,
+                    *j->path ? "." : "", j->equipment_id, R->a->results);
+            dr->refused = 1;
+            refused++;
+            continue;
+        }
+        size_t before = R->st->diags.count;
+        int bad = tw_label_derive(dr->bus, &R->st->site, R->a->date, &dr->label,
+                                  &R->st->diags) != 0;
+        bad |= tw_bus_errors(dr->bus) > 0;
+        if (R->st->diags.count > before) {   /* new findings: make room to mark them */
+            unsigned char *grown = realloc(printed, R->st->diags.count + 1);
+            if (grown)
+                memset(grown + before, 0, R->st->diags.count - before + 1);
+            printed = grown;
+        }
+        if (printed)
+            print_finding_for(&R->st->diags, j->equipment_id, printed);
+        if (bad) {
+            fprintf(stderr, "tagwright permit: %s: %s has errors in the study (above); no "
+                    "permit is drafted from data that fails 'tagwright check'\n",
+                    j->work_order ? j->work_order : j->equipment_id, j->equipment_id);
+            dr->refused = 1;
+            refused++;
+        }
+    }
+    free(printed);
+    return refused;
+}
+
+/* Where each permit goes; 0, or an exit status after printing why. */
+static int choose_paths_in(run_state *R, const char *dir);
+
+static int choose_paths(run_state *R)
+{
+    const permit_args *a = R->a;
+    const char *dir = a->out ? a->out : ".";
+    int made = 0;
+    if (R->jobs.batch) {
+        made = mkdir(dir, 0777) == 0;
+        if (!made && errno != EEXIST) {
+            fprintf(stderr, "tagwright permit: %s: cannot create the directory for the batch: "
+                    "%s\n", dir, strerror(errno));
+            return TW_EXIT_IO;
+        }
+    }
+    int rc = choose_paths_in(R, dir);
+    if (rc != TW_EXIT_OK && made)
+        rmdir(dir); /* a refused run leaves nothing behind, not even an empty directory */
+    return rc;
+}
+
+static int choose_paths_in(run_state *R, const char *dir)
+{
+    const permit_args *a = R->a;
+    const char *inputs[] = {a->results, a->job, a->site, a->manifest};
+    for (size_t i = 0; i < R->jobs.count; i++) {
+        draft *dr = &R->drafts[i];
+        char *name = tw_permit_file_name(dr->job->work_order, i);
+        if (!name)
+            goto oom;
+        if (R->jobs.batch) {
+            dr->path = tw_asprintf("%s/%s", dir, name);
+            free(name);
+        } else {
+            dr->path = a->out ? (free(name), tw_strdup(a->out)) : name;
+        }
+        if (!dr->path)
+            goto oom;
+        for (size_t k = 0; k < i; k++)
+            if (tw_strcaseeq(R->drafts[k].path, dr->path)) {
+                fprintf(stderr, "%s:%s: error: work_order: jobs %zu and %zu would both be "
+                        "written to %s; expected a different work order for each job\n",
+                        R->jobs.file, dr->job->path, k + 1, i + 1, dr->path);
+                return TW_EXIT_DATA;
+            }
+        char err[1024];
+        if (tw_output_path_ok_n(dr->path, inputs, 4, err, sizeof err) != 0) {
+            fprintf(stderr, "tagwright permit: %s\n", err);
+            return TW_EXIT_IO;
+        }
+    }
+    return TW_EXIT_OK;
+oom:
+    fprintf(stderr, "tagwright permit: out of memory\n");
+    return TW_EXIT_IO;
+}
+
+static int load_manifest(run_state *R)
+{
+    if (!R->a->manifest)
+        return TW_EXIT_OK;
+    char err[1024];
+    size_t len = 0;
+    char *data = tw_read_file(R->a->manifest, &len, err, sizeof err);
+    if (!data) {
+        fprintf(stderr, "tagwright permit: %s\n", err);
+        return TW_EXIT_IO;
+    }
+    tw_diags d;
+    tw_diags_init(&d);
+    int rc = tw_manifest_load_mem(R->a->manifest, data, len, &R->manifest, &d);
+    free(data);
+    tw_diags_print(&d, stderr);
+    tw_diags_free(&d);
+    if (rc != 0) {
+        tw_manifest_close(&R->manifest);
+        return TW_EXIT_DATA;
+    }
+    R->have_manifest = 1;
+    return TW_EXIT_OK;
+}
+
+/* The QR payload of the posted label: its revision from the manifest (the revision the next
+ * print of this content would get), 1 without one. */
+static int make_payload(run_state *R, draft *dr)
+{
+    const char *eq = dr->label.value[TW_L_EQUIPMENT_ID];
+    dr->revision = 1;
+    if (R->have_manifest) {
+        dr->revision = tw_manifest_next_revision(&R->manifest, eq, dr->label.hash);
+        const tw_manifest_entry *cur = tw_manifest_current(&R->manifest, eq);
+        if (!cur)
+            fprintf(stderr, "tagwright permit: warning: %s has no label in %s; the permit names "
+                    "revision %d, the first print\n", eq, R->a->manifest, dr->revision);
+        else if (!cur->content_hash || strcmp(cur->content_hash, dr->label.hash) != 0)
+            fprintf(stderr, "tagwright permit: warning: the posted label of %s (revision %d) "
+                    "says something other than this study; the permit names revision %d: "
+                    "reprint the label before the work\n", eq, cur->revision, dr->revision);
+    }
+    dr->payload = tw_qr_payload(R->st->site.record_link, dr->label.value[TW_L_STUDY_ID], eq,
+                                dr->revision, dr->label.hash);
+    return dr->payload ? 0 : -1;
+}
+
+static int write_all(run_state *R)
+{
+    int rc = TW_EXIT_OK;
+    for (size_t i = 0; i < R->jobs.count; i++) {
+        draft *dr = &R->drafts[i];
+        char err[1024] = "";
+        if (make_payload(R, dr) != 0) {
+            fprintf(stderr, "tagwright permit: out of memory\n");
+            return TW_EXIT_IO;
+        }
+        tw_permit p = {dr->job, &dr->label, dr->bus, &R->st->site, dr->payload, dr->revision,
+                       R->a->date, R->a->paper};
+        int pages = tw_permit_write(&p, dr->path, err, sizeof err);
+        if (pages < 0) {
+            fprintf(stderr, "tagwright permit: %s: %s\n", dr->path, err);
+            return TW_EXIT_IO;
+        }
+        const char *eq = dr->label.value[TW_L_EQUIPMENT_ID];
+        printf("%s: %d page%s, %s, label revision %d\n", dr->path, pages, pages == 1 ? "" : "s",
+               eq, dr->revision);
+        if (tw_permit_no_ppe_adequate(&dr->label)) {
+            fprintf(stderr, "tagwright permit: %s: no PPE level at this site is adequate for %s "
+                    "(minimum arc rating %s); the draft says energized work should not be "
+                    "performed\n", dr->path, eq, dr->label.value[TW_L_MIN_ARC_RATING]
+                    ? dr->label.value[TW_L_MIN_ARC_RATING] : "unknown");
+            rc = TW_EXIT_IO;
+        }
+    }
+    return rc;
+}
+
+static int run(run_state *R)
+{
+    R->drafts = calloc(R->jobs.count ? R->jobs.count : 1, sizeof *R->drafts);
+    if (!R->drafts) {
+        fprintf(stderr, "tagwright permit: out of memory\n");
+        return TW_EXIT_IO;
+    }
+    int rc = load_manifest(R);
+    if (rc != TW_EXIT_OK)
+        return rc;
+    size_t refused = derive_all(R);
+    if (refused) {
+        fprintf(stderr, "tagwright permit: %zu of %zu job%s refused; no permit written\n",
+                refused, R->jobs.count, R->jobs.count == 1 ? "" : "s");
+        return TW_EXIT_DATA;
+    }
+    rc = choose_paths(R);
+    return rc != TW_EXIT_OK ? rc : write_all(R);
+}
+
+static void run_free(run_state *R)
+{
+    for (size_t i = 0; R->drafts && i < R->jobs.count; i++) {
+        tw_label_free(&R->drafts[i].label);
+        free(R->drafts[i].path);
+        free(R->drafts[i].payload);
+    }
+    free(R->drafts);
+    if (R->have_manifest)
+        tw_manifest_close(&R->manifest);
+    tw_jobs_free(&R->jobs);
+}
+
+int cmd_permit(int argc, char **argv)
+{
+    permit_args a;
+    int rc = parse_args(argc, argv, &a);
+    if (rc != 0)
+        return rc < 0 ? TW_EXIT_OK : rc;
+    run_state R;
+    memset(&R, 0, sizeof R);
+    R.a = &a;
+    tw_diags jd;
+    tw_diags_init(&jd);
+    int jrc = tw_job_load(a.job, &R.jobs, &jd);
+    tw_diags_print(&jd, stderr);
+    tw_diags_free(&jd);
+    if (jrc != TW_JOB_OK) {
+        tw_jobs_free(&R.jobs);
+        return jrc == TW_JOB_UNREADABLE ? TW_EXIT_IO : TW_EXIT_DATA;
+    }
+    tw_study st;
+    R.st = &st;
+    if (tw_study_load(&st, a.results, a.site) != 0) {
+        tw_diags_print(&st.diags, stderr);
+        rc = st.unreadable ? TW_EXIT_IO : TW_EXIT_DATA;
+    } else {
+        rc = run(&R);
+    }
+    run_free(&R);
+    tw_study_free(&st);
+    return rc;
+}
