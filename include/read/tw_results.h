@@ -150,12 +150,26 @@ int tw_results_read_csv(const char *name, const char *data, size_t len, tw_resul
 int tw_results_read_json(const char *name, const char *data, size_t len, tw_results *out,
                          tw_diags *d);
 
+struct tw_column_map;
+
 /* CSV read from f in pieces, so the file is never held whole: buf (cap bytes) holds the first
  * `have` bytes, already read, and is reused for the rest. size is the file's size when known
  * (else 0), to size the row array. Returns as tw_results_read_csv; a read error, or a file
  * larger than TW_MAX_INPUT_BYTES, is a finding and -1. */
 int tw_results_read_csv_stream(const char *name, FILE *f, char *buf, size_t have, size_t cap,
                                size_t size, tw_results *out, tw_diags *d);
+
+/* The readers above through a column map (read/tw_column_map.h; NULL: none): source columns
+ * renamed and scaled, the file's encoding, delimiter, decimal mark, title lines and footer. */
+int tw_results_read_map(const char *path, const struct tw_column_map *map, tw_results *out,
+                        tw_diags *d);
+int tw_results_read_csv_stream_map(const char *name, FILE *f, char *buf, size_t have,
+                                   size_t cap, size_t size, const struct tw_column_map *map,
+                                   tw_results *out, tw_diags *d);
+int tw_results_read_csv_map(const char *name, const char *data, size_t len,
+                            const struct tw_column_map *map, tw_results *out, tw_diags *d);
+int tw_results_read_json_map(const char *name, const char *data, size_t len,
+                             const struct tw_column_map *map, tw_results *out, tw_diags *d);
 
 /* Free every row. */
 void tw_results_free(tw_results *r);
@@ -189,6 +203,10 @@ void tw_row_mark_invalid(tw_row *r, tw_field f);
 
 /* Parse a text cell by c's kind (text, decimal number, whole number, yes/no) and store it. */
 void tw_row_set_cell(tw_row *r, const tw_column *c, const char *s, size_t len, tw_diags *d);
+
+/* Parse a trimmed number cell ("21.4", "-0.035", "1e-3") as tw_row_set_cell does. 0 and *out
+ * set, or -1. */
+int tw_parse_cell_number(const char *s, double *out);
 
 /* Parse yes/no, true/false, y/n, 1/0 (any case). 0 and *out set, or -1. */
 int tw_parse_yes_no(const char *s, int *out);

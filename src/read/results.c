@@ -188,7 +188,8 @@ static const char *text_problem(tw_field f, const char *v, uint32_t *bad_cp)
         uint32_t cp;
         size_t n = tw_utf8_decode(u + i, len - i, &cp);
         if (n == 0)
-            return "expected UTF-8 text, found bytes that are not UTF-8";
+            return "expected UTF-8 text, found bytes that are not UTF-8; save the file as UTF-8 "
+                   "(or, for CSV, set \"encoding\" in a column map: --columns)";
         if (is_control(cp) && !(cp == '\n' && allows_line_breaks(f))) {
             *bad_cp = cp;
             return cp == '\n' ? "expected a single line, found a line break"
@@ -391,6 +392,11 @@ static int parse_plain_decimal(const char *s, double *out)
     return 0;
 }
 
+int tw_parse_cell_number(const char *s, double *out)
+{
+    return parse_plain_decimal(s, out) == 0 || tw_parse_double(s, out) == 0 ? 0 : -1;
+}
+
 /* Report a cell that does not hold the expected kind of value. */
 static void bad_cell(tw_row *r, const tw_column *c, const char *expected, const char *s,
                      size_t len, tw_diags *d)
@@ -501,6 +507,12 @@ static size_t read_first(FILE *f, char **buf, size_t *cap)
 
 int tw_results_read(const char *path, tw_results *out, tw_diags *d)
 {
+    return tw_results_read_map(path, NULL, out, d);
+}
+
+int tw_results_read_map(const char *path, const struct tw_column_map *map, tw_results *out,
+                        tw_diags *d)
+{
     memset(out, 0, sizeof *out);
     char err[1024] = "";
     FILE *f = tw_open_input(path, err, sizeof err);
@@ -521,10 +533,12 @@ int tw_results_read(const char *path, tw_results *out, tw_diags *d)
     } else if (ends_with_json(path) || looks_like_json(buf, have)) {
         size_t len = 0;
         char *data = tw_read_rest(f, path, buf, have, &len, err, sizeof err);
-        rc = data ? tw_results_read_json(path, data, len, out, d) : unreadable(path, err, d);
+        rc = data ? tw_results_read_json_map(path, data, len, map, out, d)
+                  : unreadable(path, err, d);
         free(data);
     } else {
-        rc = tw_results_read_csv_stream(path, f, buf, have, cap, tw_input_size(f), out, d);
+        rc = tw_results_read_csv_stream_map(path, f, buf, have, cap, tw_input_size(f), map, out,
+                                            d);
         free(buf);
     }
     fclose(f);

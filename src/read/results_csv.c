@@ -9,10 +9,13 @@
 #include <csv.h>
 #include <ctype.h>
 #include <errno.h>
+#include <iconv.h>
+#include <stdarg.h>
 #include <stdlib.h>
 #include <string.h>
 
 #include "base/tw_util.h"
+#include "read/tw_column_map.h"
 
 /* Largest cell accepted, in bytes (documented in docs/limits.md). Also the largest piece of a
  * line handed to libcsv at once, so a runaway quoted cell is noticed early. */
@@ -44,6 +47,14 @@ typedef struct {
     int stop;           /* reading has stopped */
     int at_start;       /* only the first bom_matched bytes of a byte order mark fed yet */
     size_t bom_matched;
+    /* a column map (NULL: the plain reader, whose path the fields below never touch) */
+    const tw_column_map *map;
+    const tw_mapped_column **mapped; /* per header column: how it is read, or NULL */
+    tw_mapped_column *identity;      /* header cells read as the tagwright column they name */
+    long header_line;   /* lines before it are titles, not fed to the parser */
+    iconv_t conv;       /* to UTF-8, when the map names another encoding */
+    int converting;
+    long ended_at;      /* line of the blank line that ended the table (stop_at_blank_line) */
 } csv_reader;
 
 /* An error about the file rather than one value: rows may be lost or ambiguous, so it counts
@@ -157,6 +168,31 @@ static void warn_unknown_column(csv_reader *rd, size_t i, const char *name)
     free(ex);
 }
 
+/* 1 when the header is one cell holding semicolons and no commas: a file separated by ';'. */
+static int looks_semicolon_separated(csv_reader *rd)
+{
+    if (rd->ncells != 1 || (rd->map && rd->map->delimiter != ','))
+        return 0;
+    const char *h = cell(rd, 0);
+    return strchr(h, ';') && !strchr(h, ',');
+}
+
+/* A header without one name tagwright knows: most likely a study export with its own names,
+ * so the message says how to read it. */
+static void no_known_column(csv_reader *rd)
+{
+    char msg[640];
+    snprintf(msg, sizeof msg,
+             "expected a header row of column names such as equipment_id, found none that "
+             "tagwright knows; is this a results file? A study export with its own column names "
+             "is read with a column map: --columns MAP.json ('tagwright columns FILE' prints one "
+             "to start from)%s",
+             looks_semicolon_separated(rd)
+                 ? "; this header has semicolons and no commas: set \"delimiter\": \";\" in the map"
+                 : "");
+    fatal_error(rd, rd->row_line, msg);
+}
+
 /* The header row names the columns. Unknown names are a warning; a name given twice makes
  * every row ambiguous, and a header with no known name at all means this is not a results
  * file: both fail the read. */
@@ -192,9 +228,7 @@ static void read_header(csv_reader *rd)
     }
     free(first);
     if (known == 0) {
-        fatal_error(rd, rd->row_line,
-                    "expected a header row of column names such as equipment_id, found none that "
-                    "tagwright knows; is this a results file?");
+        no_known_column(rd);
         return;
     }
     for (size_t i = 0; i < rd->ncells; i++)
@@ -202,6 +236,172 @@ static void read_header(csv_reader *rd)
             warn_unknown_column(rd, i, cell(rd, i));
     if (rd->file_errors)
         rd->stop = 1; /* a duplicated column makes every row ambiguous: read none */
+}
+
+static void read_row(csv_reader *rd);
+
+/* ---- with a column map ------------------------------------------------------------------ */
+
+/* Header cells the map does not read, listed in one warning. */
+static void list_ignored(csv_reader *rd)
+{
+    size_t cap = 256, len = 0, n = 0;
+    char *list = malloc(cap);
+    for (size_t i = 0; list && i < rd->ncells; i++) {
+        if (rd->mapped[i])
+            continue;
+        char *ex = tw_excerpt(cell(rd, i), strlen(cell(rd, i)));
+        size_t need = len + (ex ? strlen(ex) : 1) + 8;
+        if (need > cap) {
+            char *bigger = realloc(list, cap = need * 2);
+            if (!bigger) {
+                free(ex);
+                break;
+            }
+            list = bigger;
+        }
+        len += (size_t)snprintf(list + len, cap - len, "%s\"%s\"", n ? ", " : "", ex ? ex : "?");
+        n++;
+        free(ex);
+    }
+    if (n > 0 && list) {
+        tw_source src = {rd->out->file, rd->row_line, NULL};
+        tw_diag_add(rd->d, TW_WARNING, &src, NULL, NULL,
+                    "%zu column%s not read (not in the column map, or null there): %s", n,
+                    n == 1 ? "" : "s", list);
+    }
+    free(list);
+}
+
+static void header_error(csv_reader *rd, const char *field, const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 3, 4)))
+#endif
+    ;
+
+static void header_error(csv_reader *rd, const char *field, const char *fmt, ...)
+{
+    tw_source src = {rd->out->file, rd->row_line, NULL};
+    va_list ap;
+    va_start(ap, fmt);
+    tw_diag_vadd(rd->d, TW_ERROR, &src, NULL, field, fmt, ap);
+    va_end(ap);
+    rd->file_errors++;
+}
+
+/* How header cell i is read: the map's entry for it, else the column it names exactly. */
+static const tw_mapped_column *bind_cell(csv_reader *rd, size_t i, unsigned char *found)
+{
+    char *h = cell(rd, i);
+    if (memchr(h, '\0', rd->cell_len[i]))
+        return NULL;
+    tw_trim(h);
+    const tw_mapped_column *mc = tw_column_map_find(rd->map, h);
+    if (mc) {
+        size_t k = (size_t)(mc - rd->map->columns);
+        if (found[k])
+            header_error(rd, NULL, "column \"%s\" given twice (numbers %u and %zu); expected "
+                                   "each column once", mc->source, found[k], i + 1);
+        found[k] = (unsigned char)(i + 1 < 255 ? i + 1 : 255);
+        return mc->column ? mc : NULL;
+    }
+    const tw_column *c = tw_column_find(h);
+    if (!c)
+        return NULL;
+    tw_mapped_column *id = &rd->identity[i];
+    id->source = (char *)c->name;
+    id->column = c;
+    id->as = *c;
+    id->scale = 1;
+    id->scale_pow10 = 0;
+    id->dates = TW_DATES_ISO;
+    return id;
+}
+
+/* A text, boolean or whole-number field read from two columns (or from a column and a
+ * constant) would keep one value silently. */
+static void check_fields_once(csv_reader *rd)
+{
+    size_t from[TW_F_COUNT] = {0};
+    for (size_t i = 0; i < rd->ncells; i++) {
+        const tw_mapped_column *mc = rd->mapped[i];
+        if (!mc)
+            continue;
+        tw_field f = mc->as.field;
+        if (tw_column_map_constant(rd->map, f))
+            header_error(rd, mc->column->name, "read from column %zu and also given in the "
+                         "column map's constants; expected one or the other", i + 1);
+        if (mc->as.kind == TW_KIND_NUMBER)
+            continue;
+        if (from[f])
+            header_error(rd, mc->column->name, "read from columns %zu and %zu; expected one",
+                         from[f], i + 1);
+        from[f] = i + 1;
+    }
+}
+
+static void read_header_mapped(csv_reader *rd)
+{
+    size_t n = rd->ncells ? rd->ncells : 1;
+    const tw_column_map *m = rd->map;
+    rd->mapped = calloc(n, sizeof *rd->mapped);
+    rd->identity = calloc(n, sizeof *rd->identity);
+    unsigned char *found = calloc(m->column_count + 1, 1);
+    if (!rd->mapped || !rd->identity || !found) {
+        free(found);
+        fatal_error(rd, rd->row_line, "out of memory while reading the header");
+        return;
+    }
+    rd->ncols = rd->ncells;
+    rd->have_header = 1;
+    size_t known = 0;
+    for (size_t i = 0; i < rd->ncells; i++)
+        known += (rd->mapped[i] = bind_cell(rd, i, found)) != NULL;
+    for (size_t k = 0; k < m->column_count; k++)
+        if (!found[k] && m->columns[k].column)
+            header_error(rd, NULL,
+                         "column \"%s\" named in the column map %s is not in this header; "
+                         "expected it (check the spelling and header_line)",
+                         m->columns[k].source, m->file);
+    free(found);
+    if (known == 0) {
+        char msg[256];
+        snprintf(msg, sizeof msg,
+                 "expected the header on line %ld to hold columns the column map %s reads, found "
+                 "none; is header_line right?",
+                 rd->row_line, m->file);
+        fatal_error(rd, rd->row_line, msg);
+        return;
+    }
+    check_fields_once(rd);
+    list_ignored(rd);
+    if (rd->file_errors)
+        rd->stop = 1; /* a column read twice or missing makes every row doubtful: read none */
+}
+
+/* The cells of a row; the equipment ID first, so every finding about the row can name it. */
+static void set_cells(csv_reader *rd, tw_row *r)
+{
+    for (int pass = 0; pass < 2; pass++) {
+        for (size_t i = 0; i < rd->ncells; i++) {
+            const tw_column *c = rd->cols[i];
+            if (c && (c->field == TW_F_EQUIPMENT_ID) == (pass == 0))
+                tw_row_set_cell(r, c, cell(rd, i), rd->cell_len[i], rd->d);
+        }
+    }
+}
+
+/* The same through the column map: each column's transform was chosen with the header. */
+static void set_cells_mapped(csv_reader *rd, tw_row *r)
+{
+    for (int pass = 0; pass < 2; pass++) {
+        for (size_t i = 0; i < rd->ncells; i++) {
+            const tw_mapped_column *mc = rd->mapped[i];
+            if (mc && (mc->as.field == TW_F_EQUIPMENT_ID) == (pass == 0))
+                tw_mapped_set_cell(rd->map, mc, r, cell(rd, i), rd->cell_len[i], rd->d);
+        }
+    }
+    tw_column_map_apply_constants(rd->map, r, rd->d);
 }
 
 static void read_row(csv_reader *rd)
@@ -221,19 +421,24 @@ static void read_row(csv_reader *rd)
         return;
     }
     r->line = rd->row_line;
-    /* The equipment ID first, so every finding about the row can name it. */
-    for (int pass = 0; pass < 2; pass++) {
-        for (size_t i = 0; i < rd->ncells; i++) {
-            const tw_column *c = rd->cols[i];
-            if (c && (c->field == TW_F_EQUIPMENT_ID) == (pass == 0))
-                tw_row_set_cell(r, c, cell(rd, i), rd->cell_len[i], rd->d);
-        }
-    }
+    if (rd->map)
+        set_cells_mapped(rd, r);
+    else
+        set_cells(rd, r);
     if (rd->extra_cells)
         tw_row_diag(rd->d, r, TW_ERROR, TW_F_COUNT, NULL,
                     "row has %zu cells, expected at most %zu (one per header column)",
                     rd->ncols + rd->extra_cells, rd->ncols);
 }
+
+/* With stop_at_blank_line, the first blank line (or row of empty cells) after a data row
+ * ends the table: a footer below it is not data. */
+static int ends_table(const csv_reader *rd)
+{
+    return rd->map && rd->map->stop_at_blank_line && rd->out->count > 0;
+}
+
+static void read_header_mapped(csv_reader *rd);
 
 static void end_row(csv_reader *rd)
 {
@@ -241,7 +446,9 @@ static void end_row(csv_reader *rd)
         if (rd->have_header)
             read_row(rd);
         else
-            read_header(rd);
+            rd->map ? read_header_mapped(rd) : read_header(rd);
+    } else if (ends_table(rd)) {
+        rd->ended_at = rd->row_line;
     }
     rd->ncells = 0;
     rd->buf_len = 0;
@@ -282,6 +489,9 @@ static void feed(csv_reader *rd, const char *s, size_t n)
         rd->row_open = 1;
         rd->row_line = rd->line;
         rd->cell_line = rd->line;
+    } else if (!rd->row_open && ends_table(rd) && n > 0 && s[n - 1] == '\n') {
+        rd->ended_at = rd->line;
+        return;
     }
     size_t used = csv_parse(&rd->parser, s, n, on_cell, on_row, rd);
     if (rd->stop)
@@ -316,13 +526,52 @@ static void finish(csv_reader *rd)
 static void reader_free(csv_reader *rd)
 {
     csv_free(&rd->parser);
+    if (rd->converting)
+        iconv_close(rd->conv);
+    free(rd->mapped);
+    free(rd->identity);
     free(rd->cols);
     free(rd->buf);
     free(rd->cell_off);
     free(rd->cell_len);
 }
 
-static int reader_open(csv_reader *rd, const char *name, tw_results *out, tw_diags *d)
+static const char *encoding_name(tw_encoding e)
+{
+    return e == TW_ENCODING_WINDOWS_1252 ? "windows-1252" : "iso-8859-1";
+}
+
+/* A tab-separated file keeps its tabs: only spaces and CR are blanks around a cell. */
+static int is_blank_char_not_tab(unsigned char c)
+{
+    return c == ' ' || c == '\r';
+}
+
+/* What the map says about the file as a whole: delimiter, title lines, encoding. */
+static int reader_use_map(csv_reader *rd, const tw_column_map *map)
+{
+    rd->map = map;
+    rd->header_line = map->header_line;
+    csv_set_delim(&rd->parser, (unsigned char)map->delimiter);
+    if (map->delimiter == '\t')
+        csv_set_space_func(&rd->parser, is_blank_char_not_tab);
+    if (map->encoding == TW_ENCODING_UTF8)
+        return 0;
+    rd->conv = iconv_open("UTF-8", map->encoding == TW_ENCODING_WINDOWS_1252 ? "WINDOWS-1252"
+                                                                            : "ISO-8859-1");
+    if (rd->conv == (iconv_t)-1) {
+        tw_source src = {rd->out->file, 0, NULL};
+        tw_diag_add(rd->d, TW_ERROR, &src, NULL, NULL,
+                    "cannot convert from %s on this system (iconv); expected it to be available",
+                    encoding_name(map->encoding));
+        return -1;
+    }
+    rd->converting = 1;
+    return 0;
+}
+
+static int reader_open(csv_reader *rd, const char *name, const tw_column_map *map,
+                       tw_results *out, tw_diags *d)
 {
     memset(out, 0, sizeof *out);
     out->file = tw_strdup(name ? name : "-");
@@ -340,6 +589,13 @@ static int reader_open(csv_reader *rd, const char *name, tw_results *out, tw_dia
     }
     csv_set_space_func(&rd->parser, is_blank_char);
     csv_set_term_func(&rd->parser, is_record_end);
+    rd->header_line = 1;
+    if (map && reader_use_map(rd, map) != 0) {
+        reader_free(rd);
+        free(out->file);
+        out->file = NULL;
+        return -1;
+    }
     return 0;
 }
 
@@ -366,11 +622,58 @@ static size_t skip_bom(csv_reader *rd, const char *p, size_t len)
     return used;
 }
 
-/* The next bytes of the file, cut anywhere (libcsv keeps its state between calls). */
-static void reader_feed(csv_reader *rd, const char *p, size_t len)
+static void feed_utf8(csv_reader *rd, const char *p, size_t len)
 {
     size_t used = rd->at_start ? skip_bom(rd, p, len) : 0;
     feed_pieces(rd, p + used, len - used);
+}
+
+/* Bytes in the map's encoding, fed as UTF-8 in pieces. Both encodings are one byte a
+ * character, so a piece never ends inside a character. */
+static void feed_converted(csv_reader *rd, const char *p, size_t len)
+{
+    char *in = (char *)p;
+    size_t left = len;
+    while (left > 0 && !rd->stop) {
+        char out[16384];
+        char *o = out;
+        size_t room = sizeof out;
+        size_t rc = iconv(rd->conv, &in, &left, &o, &room);
+        int err = rc == (size_t)-1 ? errno : 0;
+        feed_utf8(rd, out, (size_t)(o - out));
+        if (err && err != E2BIG && !rd->stop) {
+            char msg[160];
+            snprintf(msg, sizeof msg,
+                     "byte 0x%02X is not a character of %s, the column map's encoding; expected "
+                     "text in that encoding; reading stops here",
+                     (unsigned)(unsigned char)*in, encoding_name(rd->map->encoding));
+            file_error(rd, rd->line, msg);
+            rd->stop = 1;
+        }
+    }
+}
+
+/* The next bytes of the file, cut anywhere (libcsv keeps its state between calls). */
+static void reader_feed(csv_reader *rd, const char *p, size_t len)
+{
+    if (rd->converting)
+        feed_converted(rd, p, len);
+    else
+        feed_utf8(rd, p, len);
+}
+
+/* After the table has ended, the rest is only looked at: text there is a footer, which the
+ * user is told about once, since it is not read. */
+static void after_table(csv_reader *rd, const char *p, size_t n)
+{
+    if (is_blank(p, n))
+        return;
+    tw_source src = {rd->out->file, rd->line, NULL};
+    tw_diag_add(rd->d, TW_WARNING, &src, NULL, NULL,
+                "not read: the table ended at the blank line %ld (stop_at_blank_line in the "
+                "column map); this and later lines are taken as a footer",
+                rd->ended_at);
+    rd->stop = 1;
 }
 
 static void feed_pieces(csv_reader *rd, const char *p, size_t len)
@@ -383,7 +686,12 @@ static void feed_pieces(csv_reader *rd, const char *p, size_t len)
         const char *nl = memchr(p, '\n', n);
         if (nl)
             n = (size_t)(nl - p) + 1;
-        feed(rd, p, n);
+        if (rd->line < rd->header_line) /* a title line above the header */
+            ;
+        else if (rd->ended_at)
+            after_table(rd, p, n);
+        else
+            feed(rd, p, n);
         p += n;
         if (nl)
             rd->line++;
@@ -421,8 +729,14 @@ static void reserve_rows(tw_results *out, size_t rows)
 int tw_results_read_csv(const char *name, const char *data, size_t len, tw_results *out,
                         tw_diags *d)
 {
+    return tw_results_read_csv_map(name, data, len, NULL, out, d);
+}
+
+int tw_results_read_csv_map(const char *name, const char *data, size_t len,
+                            const tw_column_map *map, tw_results *out, tw_diags *d)
+{
     csv_reader rd;
-    if (reader_open(&rd, name, out, d) != 0)
+    if (reader_open(&rd, name, map, out, d) != 0)
         return -1;
     reserve_rows(out, count_lines(data, len));
     reader_feed(&rd, data, len);
@@ -432,8 +746,15 @@ int tw_results_read_csv(const char *name, const char *data, size_t len, tw_resul
 int tw_results_read_csv_stream(const char *name, FILE *f, char *buf, size_t have, size_t cap,
                                size_t size, tw_results *out, tw_diags *d)
 {
+    return tw_results_read_csv_stream_map(name, f, buf, have, cap, size, NULL, out, d);
+}
+
+int tw_results_read_csv_stream_map(const char *name, FILE *f, char *buf, size_t have,
+                                   size_t cap, size_t size, const tw_column_map *map,
+                                   tw_results *out, tw_diags *d)
+{
     csv_reader rd;
-    if (reader_open(&rd, name, out, d) != 0)
+    if (reader_open(&rd, name, map, out, d) != 0)
         return -1;
     /* Rows in the whole file, guessed from the lines of the first piece. */
     size_t lines = count_lines(buf, have);

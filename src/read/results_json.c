@@ -13,6 +13,7 @@
 
 #include "base/tw_map.h"
 #include "base/tw_util.h"
+#include "read/tw_column_map.h"
 
 typedef struct {
     tw_results *out;
@@ -20,6 +21,8 @@ typedef struct {
     tw_map warned;      /* unknown keys already reported (keys point into the cJSON tree) */
     unsigned file_errors; /* findings about the file's shape (counted on every row) */
     int fatal;          /* out of memory: the read returns -1 */
+    const tw_column_map *map; /* NULL: keys are tagwright field names */
+    unsigned char *map_seen;  /* per map column: some object had its key */
 } json_reader;
 
 /* An error about the shape of the file rather than one value: buses may be lost, so it counts
@@ -114,17 +117,53 @@ static void warn_unknown_key(json_reader *jr, const char *obj_path, const char *
     free(ex);
 }
 
+/* A value under a key the column map renames: missing-value words are absent, numbers are
+ * scaled, dates read in the column's format; the rest as without a map. */
+static void read_mapped_value(json_reader *jr, tw_row *r, const tw_mapped_column *mc,
+                              const cJSON *v)
+{
+    if (cJSON_IsString(v) &&
+        tw_column_map_is_missing(jr->map, v->valuestring, strlen(v->valuestring)))
+        return;
+    if (cJSON_IsNumber(v) && mc->as.kind != TW_KIND_BOOL && mc->as.kind != TW_KIND_TEXT)
+        tw_mapped_set_number(mc, r, v->valuedouble, jr->d);
+    else if (cJSON_IsString(v) && mc->as.kind == TW_KIND_TEXT)
+        tw_mapped_set_cell(jr->map, mc, r, v->valuestring, strlen(v->valuestring), jr->d);
+    else
+        read_value(jr, r, &mc->as, v);
+}
+
+/* The column a key fills: the map's entry for it (which may say: not read), else the field
+ * it names. *mapped is set when the map had it; *slot is its place among seen keys. */
+static const tw_column *key_column(json_reader *jr, const char *key,
+                                   const tw_mapped_column **mapped, size_t *slot)
+{
+    const tw_mapped_column *mc = jr->map ? tw_column_map_find(jr->map, key) : NULL;
+    *mapped = mc;
+    if (mc) {
+        size_t k = (size_t)(mc - jr->map->columns);
+        jr->map_seen[k] = 1;
+        *slot = tw_column_count + k;
+        return mc->column ? &mc->as : NULL;
+    }
+    const tw_column *c = tw_column_find(key);
+    *slot = c ? (size_t)(c - tw_columns) : 0;
+    return c;
+}
+
 /* The keys of one object into row r; the equipment ID first, so findings can name it. */
 static void read_object(json_reader *jr, tw_row *r, const cJSON *obj)
 {
-    unsigned char *seen = calloc(tw_column_count, 1);
+    unsigned char *seen = calloc(tw_column_count + (jr->map ? jr->map->column_count : 0), 1);
     if (!seen) {
         out_of_memory(jr, r->path);
         return;
     }
     for (int pass = 0; pass < 2; pass++) {
         for (const cJSON *v = obj->child; v; v = v->next) {
-            const tw_column *c = v->string ? tw_column_find(v->string) : NULL;
+            const tw_mapped_column *mc = NULL;
+            size_t k = 0;
+            const tw_column *c = v->string ? key_column(jr, v->string, &mc, &k) : NULL;
             if (!c) {
                 if (pass == 1)
                     warn_unknown_key(jr, r->path, v->string ? v->string : "");
@@ -132,7 +171,6 @@ static void read_object(json_reader *jr, tw_row *r, const cJSON *obj)
             }
             if ((c->field == TW_F_EQUIPMENT_ID) != (pass == 0))
                 continue;
-            size_t k = (size_t)(c - tw_columns);
             if (seen[k]) {
                 tw_row_diag(jr->d, r, TW_ERROR, c->field, c->name,
                             "key given twice in one object; expected it once");
@@ -140,7 +178,13 @@ static void read_object(json_reader *jr, tw_row *r, const cJSON *obj)
                 continue;
             }
             seen[k] = 1;
-            read_value(jr, r, c, v);
+            if (mc)
+                read_mapped_value(jr, r, mc, v);
+            else if (jr->map && cJSON_IsString(v) &&
+                     tw_column_map_is_missing(jr->map, v->valuestring, strlen(v->valuestring)))
+                continue;
+            else
+                read_value(jr, r, c, v);
         }
     }
     free(seen);
@@ -199,6 +243,8 @@ static void read_buses(json_reader *jr, const cJSON *buses, const tw_row *def)
         r->path = path;
         read_object(jr, r, b);
         apply_defaults(r, def);
+        if (jr->map)
+            tw_column_map_apply_constants(jr->map, r, jr->d);
     }
 }
 
@@ -265,8 +311,35 @@ static int only_blanks_after(const char *data, size_t off, size_t len, size_t *w
     return off == len;
 }
 
+/* After the whole file: a key the map names that no object had is an error, as a missing
+ * column is in CSV; keys that only CSV uses are pointed out. */
+static void check_map_use(json_reader *jr)
+{
+    const tw_column_map *m = jr->map;
+    for (size_t k = 0; k < m->column_count; k++) {
+        if (jr->map_seen[k] || !m->columns[k].column)
+            continue;
+        char *msg = tw_asprintf("key \"%s\" named in the column map %s is in no bus; expected "
+                                "it (check the spelling)", m->columns[k].source, m->file);
+        path_error(jr, "buses", msg ? msg : "a key named in the column map is in no bus");
+        free(msg);
+    }
+    if (m->csv_only_keys) {
+        tw_source src = {jr->out->file, 0, NULL};
+        tw_diag_add(jr->d, TW_WARNING, &src, NULL, NULL,
+                    "the column map's encoding, header_line, delimiter, decimal and "
+                    "stop_at_blank_line apply to CSV only; a JSON file is read as JSON (UTF-8)");
+    }
+}
+
 int tw_results_read_json(const char *name, const char *data, size_t len, tw_results *out,
                          tw_diags *d)
+{
+    return tw_results_read_json_map(name, data, len, NULL, out, d);
+}
+
+int tw_results_read_json_map(const char *name, const char *data, size_t len,
+                             const tw_column_map *map, tw_results *out, tw_diags *d)
 {
     memset(out, 0, sizeof *out);
     out->file = tw_strdup(name ? name : "-");
@@ -293,8 +366,13 @@ int tw_results_read_json(const char *name, const char *data, size_t len, tw_resu
         cJSON_Delete(root);
         return -1;
     }
-    json_reader jr = {out, d, {0}, 0, 0};
+    json_reader jr = {out, d, {0}, 0, 0, map, NULL};
     tw_map_init(&jr.warned);
+    if (map && !(jr.map_seen = calloc(map->column_count + 1, 1))) {
+        out_of_memory(&jr, "buses");
+        cJSON_Delete(root);
+        return -1;
+    }
     /* cJSON would cut a string at a NUL without saying so; a value must never be shortened
      * silently, so no bus is read from such a file. */
     size_t nul = tw_json_find_nul(data, len);
@@ -310,6 +388,9 @@ int tw_results_read_json(const char *name, const char *data, size_t len, tw_resu
                    "kind of value; no bus is read from this file");
     else
         read_top_level(&jr, root);
+    if (map && !jr.fatal && cJSON_IsObject(root) && nul >= len)
+        check_map_use(&jr);
+    free(jr.map_seen);
     for (size_t i = 0; i < out->count; i++)
         out->rows[i].errors += jr.file_errors;
     tw_map_free(&jr.warned);
