@@ -26,6 +26,11 @@ typedef struct {
  * unreadable, malformed beyond use, or memory ran out. */
 int tw_study_load(tw_study *s, const char *results_path, const char *site_path);
 
+/* The same with a column map (read/tw_column_map.h): columns_path when not NULL, else the
+ * one the site settings name, else none. A map with errors is -1 (bad data). */
+int tw_study_load_mapped(tw_study *s, const char *results_path, const char *site_path,
+                         const char *columns_path);
+
 void tw_study_free(tw_study *s);
 
 #endif

@@ -9,7 +9,7 @@
 #include "rules/tw_study.h"
 
 static const char check_usage[] =
-    "usage: tagwright check RESULTS [--site SITE.json]\n"
+    "usage: tagwright check RESULTS [--site SITE.json] [--columns MAP.json]\n"
     "Prints FILE:LINE: error|warning: EQUIPMENT_ID: field: message for every finding.\n";
 
 /* A bus that passes validation is derived as `labels` would derive it, so that check reports
@@ -32,15 +32,18 @@ int cmd_check(int argc, char **argv)
 {
     static const struct option opts[] = {
         {"site", required_argument, NULL, 's'},
+        {"columns", required_argument, NULL, 'C'},
         {"help", no_argument, NULL, 'h'},
         {NULL, 0, NULL, 0},
     };
-    const char *site = NULL;
+    const char *site = NULL, *columns = NULL;
     int c;
     optind = 1;
-    while ((c = getopt_long(argc, argv, "s:h", opts, NULL)) != -1) {
+    while ((c = getopt_long(argc, argv, "s:C:h", opts, NULL)) != -1) {
         if (c == 's')
             site = optarg;
+        else if (c == 'C')
+            columns = optarg;
         else if (c == 'h') {
             fputs(check_usage, stdout);
             return TW_EXIT_OK;
@@ -50,7 +53,7 @@ int cmd_check(int argc, char **argv)
     if (optind != argc - 1)
         return tw_usage_error("check", "expected one results file (CSV or JSON)");
     tw_study st;
-    int rc = tw_study_load(&st, argv[optind], site);
+    int rc = tw_study_load_mapped(&st, argv[optind], site, columns);
     if (rc == 0)
         derive_clean_buses(&st);
     tw_diags_sort(&st.diags);

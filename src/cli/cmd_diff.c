@@ -24,7 +24,7 @@
 static const char diff_usage[] =
     "usage: tagwright diff OLD NEW [--site SITE.json] [--format text|json]\n"
     "                      [--out labels.pdf [--manifest M.json] [--reason TEXT]]\n"
-    "                      [--layout NAME|FILE] [--date YYYY-MM-DD]\n"
+    "                      [--layout NAME|FILE] [--date YYYY-MM-DD] [--columns MAP.json]\n"
     "  OLD, NEW    two study results files (CSV or JSON), compared by equipment ID\n"
     "  --format    text (default) or json, on standard output\n"
     "  --out       print labels for the added and changed buses only (the reprint batch)\n"
@@ -32,7 +32,7 @@ static const char diff_usage[] =
     "study_id, study_date and review_due are not compared: they change with every study.\n";
 
 typedef struct {
-    const char *old_path, *new_path, *site, *out, *manifest, *layout, *reason;
+    const char *old_path, *new_path, *site, *out, *manifest, *layout, *reason, *columns;
     int json;
     char date[11];
 } diff_args;
@@ -44,15 +44,17 @@ static int parse_args(int argc, char **argv, diff_args *a)
         {"out", required_argument, NULL, 'o'},    {"manifest", required_argument, NULL, 'm'},
         {"reason", required_argument, NULL, 'r'}, {"layout", required_argument, NULL, 'l'},
         {"date", required_argument, NULL, 't'},   {"help", no_argument, NULL, 'h'},
+        {"columns", required_argument, NULL, 'C'},
         {NULL, 0, NULL, 0},
     };
     memset(a, 0, sizeof *a);
     tw_date_format(tw_date_today(), a->date);
     int c;
     optind = 1;
-    while ((c = getopt_long(argc, argv, "s:f:o:m:r:l:t:h", opts, NULL)) != -1) {
+    while ((c = getopt_long(argc, argv, "s:f:o:m:r:l:t:C:h", opts, NULL)) != -1) {
         switch (c) {
         case 's': a->site = optarg; break;
+        case 'C': a->columns = optarg; break;
         case 'f':
             if (strcmp(optarg, "text") && strcmp(optarg, "json"))
                 return tw_usage_error("diff", "--format: expected text or json, got '%s'", optarg);
@@ -94,10 +96,11 @@ static int side_bad(const side *s, size_t i)
     return s->labels[i].draft || tw_bus_errors(&s->st.buses.buses[i]) > 0;
 }
 
-static int side_load(side *s, const char *path, const char *site, const char *date)
+static int side_load(side *s, const char *path, const char *site, const char *columns,
+                     const char *date)
 {
     s->path = path;
-    if (tw_study_load(&s->st, path, site) != 0)
+    if (tw_study_load_mapped(&s->st, path, site, columns) != 0)
         return s->st.unreadable ? TW_EXIT_IO : TW_EXIT_DATA;
     size_t n = s->st.buses.count;
     const tw_bus **buses = calloc(n ? n : 1, sizeof *buses);
@@ -376,9 +379,9 @@ int cmd_diff(int argc, char **argv)
         return rc < 0 ? TW_EXIT_OK : rc;
     side o = {0}, nw = {0};
     comparison c = {0};
-    rc = side_load(&o, a.old_path, a.site, a.date);
+    rc = side_load(&o, a.old_path, a.site, a.columns, a.date);
     if (rc == TW_EXIT_OK)
-        rc = side_load(&nw, a.new_path, a.site, a.date);
+        rc = side_load(&nw, a.new_path, a.site, a.columns, a.date);
     print_errors(&o);
     print_errors(&nw);
     if (rc != TW_EXIT_OK)

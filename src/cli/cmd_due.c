@@ -15,7 +15,7 @@
 #include "base/tw_util.h"
 
 static const char due_usage[] =
-    "usage: tagwright due RESULTS [--on YYYY-MM-DD] [--within DAYS] [--all]\n"
+    "usage: tagwright due RESULTS [--on YYYY-MM-DD] [--within DAYS] [--all] [--columns MAP.json]\n"
     "  --on      the date to check against (default today, UTC)\n"
     "  --within  also list reviews due within this many days (default 0)\n"
     "  --all     list every bus, not only overdue and due ones\n"
@@ -26,7 +26,7 @@ static const char due_usage[] =
 #define DUE_MAX_WITHIN_DAYS 36525
 
 typedef struct {
-    const char *results;
+    const char *results, *columns;
     tw_date on;
     long within;
     int all;
@@ -37,6 +37,7 @@ static int parse_args(int argc, char **argv, due_args *a)
     static const struct option opts[] = {
         {"on", required_argument, NULL, 'o'}, {"within", required_argument, NULL, 'w'},
         {"all", no_argument, NULL, 'a'},      {"help", no_argument, NULL, 'h'},
+        {"columns", required_argument, NULL, 'C'},
         {NULL, 0, NULL, 0},
     };
     memset(a, 0, sizeof *a);
@@ -45,8 +46,9 @@ static int parse_args(int argc, char **argv, due_args *a)
     double days;
     int c;
     optind = 1;
-    while ((c = getopt_long(argc, argv, "o:w:ah", opts, NULL)) != -1) {
+    while ((c = getopt_long(argc, argv, "o:w:aC:h", opts, NULL)) != -1) {
         switch (c) {
+        case 'C': a->columns = optarg; break;
         case 'o':
             if (tw_option_date(optarg, buf) != 0 || tw_date_parse(buf, &a->on) != 0)
                 return tw_usage_error("due", "--on: expected YYYY-MM-DD, got '%s'", optarg);
@@ -179,7 +181,7 @@ int cmd_due(int argc, char **argv)
         return rc < 0 ? TW_EXIT_OK : rc;
     tw_study st;
     /* Only the study dates matter here; other findings are `check`'s business. */
-    if (tw_study_load(&st, a.results, NULL) != 0) {
+    if (tw_study_load_mapped(&st, a.results, NULL, a.columns) != 0) {
         tw_diags_print(&st.diags, stderr);
         rc = st.unreadable ? TW_EXIT_IO : TW_EXIT_DATA;
     } else {

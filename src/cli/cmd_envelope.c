@@ -24,7 +24,7 @@
 
 static const char envelope_usage[] =
     "usage: tagwright envelope RESULTS [--target-rating CAL] [--format text|csv|json]\n"
-    "                          [--out FILE]\n"
+    "                          [--out FILE] [--columns MAP.json]\n"
     "For every bus: the governing scenario, its incident energy and arc-flash boundary, the\n"
     "source fault current below which incident energy rises, and with --target-rating (an arc\n"
     "rating in cal/cm2) the lowest source fault current for which every scenario at or above\n"
@@ -38,6 +38,7 @@ typedef struct {
     const char *out;
     double target;          /* NAN: none */
     report_format format;
+    const char *columns;    /* column map, or NULL */
 } envelope_opts;
 
 static const char *scenario_of(const tw_row *r)
@@ -283,14 +284,15 @@ static int parse_opts(int argc, char **argv, envelope_opts *o, int *done)
         {"target-rating", required_argument, NULL, 't'},
         {"format", required_argument, NULL, 'f'},
         {"out", required_argument, NULL, 'o'},
+        {"columns", required_argument, NULL, 'C'},
         {"help", no_argument, NULL, 'h'},
         {NULL, 0, NULL, 0},
     };
-    *o = (envelope_opts){NULL, NULL, NAN, FORMAT_TEXT};
+    *o = (envelope_opts){NULL, NULL, NAN, FORMAT_TEXT, NULL};
     *done = 0;
     int c;
     optind = 1;
-    while ((c = getopt_long(argc, argv, "t:f:o:h", opts, NULL)) != -1) {
+    while ((c = getopt_long(argc, argv, "t:f:o:C:h", opts, NULL)) != -1) {
         if (c == 't') {
             if (tw_parse_double(optarg, &o->target) != 0 || !(o->target > 0) ||
                 !isfinite(o->target))
@@ -308,6 +310,8 @@ static int parse_opts(int argc, char **argv, envelope_opts *o, int *done)
                                       "'%s'", optarg);
         } else if (c == 'o') {
             o->out = optarg;
+        } else if (c == 'C') {
+            o->columns = optarg;
         } else if (c == 'h') {
             fputs(envelope_usage, stdout);
             *done = 1;
@@ -385,7 +389,7 @@ int cmd_envelope(int argc, char **argv)
     if (rc != TW_EXIT_OK || done)
         return rc;
     tw_study st;
-    int loaded = tw_study_load(&st, o.results, NULL);
+    int loaded = tw_study_load_mapped(&st, o.results, NULL, o.columns);
     if (loaded != 0 && !st.diags.errors) {
         tw_diags_print(&st.diags, stderr);
         fprintf(stderr, "tagwright envelope: could not read %s\n", o.results);

@@ -21,7 +21,7 @@
 static const char labels_usage[] =
     "usage: tagwright labels RESULTS [--site SITE.json] [--out labels.pdf] [--manifest M.json]\n"
     "                        [--bus ID]... [--draft] [--layout NAME|FILE] [--date YYYY-MM-DD]\n"
-    "                        [--volume-size N] [--jobs N]\n"
+    "                        [--volume-size N] [--jobs N] [--columns MAP.json]\n"
     "  --out       PDF to write (default labels.pdf); written only if every label can be made\n"
     "  --manifest  record of printed labels (default: beside the PDF, NAME.manifest.json)\n"
     "  --bus       print only this equipment ID (repeatable)\n"
@@ -34,7 +34,7 @@ static const char labels_usage[] =
     "              processor, at most 4); the output is the same whatever the number\n";
 
 typedef struct {
-    const char *results, *site, *out, *manifest, *layout;
+    const char *results, *site, *out, *manifest, *layout, *columns;
     const char **buses;
     size_t bus_count;
     int draft;
@@ -79,6 +79,7 @@ static int parse_args(int argc, char **argv, labels_args *a)
         {"draft", no_argument, NULL, 'd'},        {"layout", required_argument, NULL, 'l'},
         {"date", required_argument, NULL, 't'},   {"help", no_argument, NULL, 'h'},
         {"volume-size", required_argument, NULL, 'V'}, {"jobs", required_argument, NULL, 'j'},
+        {"columns", required_argument, NULL, 'C'},
         {NULL, 0, NULL, 0},
     };
     memset(a, 0, sizeof *a);
@@ -89,9 +90,10 @@ static int parse_args(int argc, char **argv, labels_args *a)
         return tw_usage_error("labels", "out of memory");
     int c;
     optind = 1;
-    while ((c = getopt_long(argc, argv, "s:o:m:b:dl:t:h", opts, NULL)) != -1) {
+    while ((c = getopt_long(argc, argv, "s:o:m:b:dl:t:C:h", opts, NULL)) != -1) {
         switch (c) {
         case 's': a->site = optarg; break;
+        case 'C': a->columns = optarg; break;
         case 'o': a->out = optarg; break;
         case 'm': a->manifest = optarg; break;
         case 'b': a->buses[a->bus_count++] = optarg; break;
@@ -240,7 +242,7 @@ int cmd_labels(int argc, char **argv)
         return rc < 0 ? TW_EXIT_OK : rc;
     }
     tw_study st;
-    if (tw_study_load(&st, a.results, a.site) != 0) {
+    if (tw_study_load_mapped(&st, a.results, a.site, a.columns) != 0) {
         tw_diags_print(&st.diags, stderr);
         rc = st.unreadable ? TW_EXIT_IO : TW_EXIT_DATA;
     } else {

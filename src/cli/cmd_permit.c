@@ -27,6 +27,7 @@
 static const char permit_usage[] =
     "usage: tagwright permit RESULTS --job JOB.json [--site SITE.json] [--out PATH]\n"
     "                        [--manifest M.json] [--date YYYY-MM-DD] [--paper letter|a4]\n"
+    "                        [--columns MAP.json]\n"
     "  --job       job file: one job object, or an array of jobs (a batch)\n"
     "  --out       one job: the PDF to write (default permit-WORKORDER.pdf);\n"
     "              a batch: the directory for permit-WORKORDER.pdf files (default .)\n"
@@ -38,7 +39,7 @@ static const char permit_usage[] =
     "drafted for equipment where no PPE the site stocks is adequate\n";
 
 typedef struct {
-    const char *results, *job, *site, *out, *manifest;
+    const char *results, *job, *site, *out, *manifest, *columns;
     tw_paper paper;
     char date[11];
 } permit_args;
@@ -49,16 +50,18 @@ static int parse_args(int argc, char **argv, permit_args *a)
         {"job", required_argument, NULL, 'j'},      {"site", required_argument, NULL, 's'},
         {"out", required_argument, NULL, 'o'},      {"manifest", required_argument, NULL, 'm'},
         {"date", required_argument, NULL, 't'},     {"paper", required_argument, NULL, 'p'},
-        {"help", no_argument, NULL, 'h'},           {NULL, 0, NULL, 0},
+        {"help", no_argument, NULL, 'h'},           {"columns", required_argument, NULL, 'C'},
+        {NULL, 0, NULL, 0},
     };
     memset(a, 0, sizeof *a);
     tw_date_format(tw_date_today(), a->date);
     int c;
     optind = 1;
-    while ((c = getopt_long(argc, argv, "j:s:o:m:t:p:h", opts, NULL)) != -1) {
+    while ((c = getopt_long(argc, argv, "j:s:o:m:t:p:C:h", opts, NULL)) != -1) {
         switch (c) {
         case 'j': a->job = optarg; break;
         case 's': a->site = optarg; break;
+        case 'C': a->columns = optarg; break;
         case 'o': a->out = optarg; break;
         case 'm': a->manifest = optarg; break;
         case 't':
@@ -349,7 +352,7 @@ int cmd_permit(int argc, char **argv)
     }
     tw_study st;
     R.st = &st;
-    if (tw_study_load(&st, a.results, a.site) != 0) {
+    if (tw_study_load_mapped(&st, a.results, a.site, a.columns) != 0) {
         tw_diags_print(&st.diags, stderr);
         rc = st.unreadable ? TW_EXIT_IO : TW_EXIT_DATA;
     } else {

@@ -28,6 +28,7 @@ static const char reprint_usage[] =
     "usage: tagwright reprint RESULTS --bus ID (--clearing-time S | --incident-energy E)\n"
     "                         [--site SITE.json] [--out label.pdf] [--manifest M.json]\n"
     "                         [--reason TEXT] [--layout NAME|FILE] [--date YYYY-MM-DD]\n"
+    "                         [--columns MAP.json]\n"
     "  --bus              the equipment ID whose label is revised\n"
     "  --clearing-time    new clearing time of its protective device, s: the energy of the\n"
     "                     governing scenario is rescaled by new time / study time\n"
@@ -39,7 +40,7 @@ static const char reprint_usage[] =
     "A re-run study is the proper source of new values; rescaling is an estimate.\n";
 
 typedef struct {
-    const char *results, *site, *out, *manifest, *layout, *bus, *reason;
+    const char *results, *site, *out, *manifest, *layout, *bus, *reason, *columns;
     double clearing_time;       /* 0: not given */
     double incident_energy;     /* 0: not given */
     char date[11];
@@ -63,6 +64,7 @@ static int parse_args(int argc, char **argv, reprint_args *a)
         {"out", required_argument, NULL, 'o'},       {"manifest", required_argument, NULL, 'm'},
         {"reason", required_argument, NULL, 'r'},    {"layout", required_argument, NULL, 'l'},
         {"date", required_argument, NULL, 't'},      {"help", no_argument, NULL, 'h'},
+        {"columns", required_argument, NULL, 'C'},
         {NULL, 0, NULL, 0},
     };
     memset(a, 0, sizeof *a);
@@ -70,7 +72,7 @@ static int parse_args(int argc, char **argv, reprint_args *a)
     tw_date_format(tw_date_today(), a->date);
     int c;
     optind = 1;
-    while ((c = getopt_long(argc, argv, "b:c:e:s:o:m:r:l:t:h", opts, NULL)) != -1) {
+    while ((c = getopt_long(argc, argv, "b:c:e:s:o:m:r:l:t:C:h", opts, NULL)) != -1) {
         switch (c) {
         case 'b': a->bus = optarg; break;
         case 'c':
@@ -82,6 +84,7 @@ static int parse_args(int argc, char **argv, reprint_args *a)
                 return TW_EXIT_USAGE;
             break;
         case 's': a->site = optarg; break;
+        case 'C': a->columns = optarg; break;
         case 'o': a->out = optarg; break;
         case 'm': a->manifest = optarg; break;
         case 'r': a->reason = optarg; break;
@@ -456,7 +459,7 @@ int cmd_reprint(int argc, char **argv)
     if (rc != 0)
         return rc < 0 ? TW_EXIT_OK : rc;
     tw_study st;
-    if (tw_study_load(&st, a.results, a.site) != 0) {
+    if (tw_study_load_mapped(&st, a.results, a.site, a.columns) != 0) {
         tw_diags_print(&st.diags, stderr);
         rc = st.unreadable ? TW_EXIT_IO : TW_EXIT_DATA;
     } else {

@@ -20,13 +20,14 @@
 
 static const char summary_usage[] =
     "usage: tagwright summary RESULTS --out FILE.pdf [--site SITE.json] [--date YYYY-MM-DD]\n"
+    "                         [--columns MAP.json]\n"
     "A PDF for the engineer and the owner: a table of every bus as its label reads, a bar\n"
     "chart of incident energy by bus with the site's PPE ratings, and a plot of incident\n"
     "energy against source fault current for each bus with a scenario sweep. --date sets the\n"
     "date printed and the PDF's dates (default: today, UTC).\n";
 
 typedef struct {
-    const char *results, *out, *site;
+    const char *results, *out, *site, *columns;
     char date[11];
 } summary_opts;
 
@@ -36,6 +37,7 @@ static int parse_opts(int argc, char **argv, summary_opts *o, int *done)
         {"out", required_argument, NULL, 'o'},
         {"site", required_argument, NULL, 's'},
         {"date", required_argument, NULL, 'd'},
+        {"columns", required_argument, NULL, 'C'},
         {"help", no_argument, NULL, 'h'},
         {NULL, 0, NULL, 0},
     };
@@ -44,11 +46,13 @@ static int parse_opts(int argc, char **argv, summary_opts *o, int *done)
     tw_date_format(tw_date_today(), o->date);
     int c;
     optind = 1;
-    while ((c = getopt_long(argc, argv, "o:s:d:h", opts, NULL)) != -1) {
+    while ((c = getopt_long(argc, argv, "o:s:d:C:h", opts, NULL)) != -1) {
         if (c == 'o')
             o->out = optarg;
         else if (c == 's')
             o->site = optarg;
+        else if (c == 'C')
+            o->columns = optarg;
         else if (c == 'd') {
             if (tw_option_date(optarg, o->date) != 0)
                 return tw_usage_error("summary", "--date: expected YYYY-MM-DD, got '%s'",
@@ -140,7 +144,7 @@ int cmd_summary(int argc, char **argv)
         return TW_EXIT_IO;
     }
     tw_study st;
-    int loaded = tw_study_load(&st, o.results, o.site);
+    int loaded = tw_study_load_mapped(&st, o.results, o.site, o.columns);
     rc = report_findings(&st, loaded);
     if (rc == TW_EXIT_OK)
         rc = write_summary(&st, &o);

@@ -69,6 +69,7 @@ void tw_site_free(tw_site *s)
     free_strings(s->cautions, s->caution_count);
     free(s->language);
     free(s->layout);
+    free(s->columns);
     memset(s, 0, sizeof *s);
 }
 
@@ -405,6 +406,32 @@ static void key_ppe_levels(loader *L, const cJSON *v, tw_site *s)
     s->ppe_level_count = count;
 }
 
+/* A column map path; a relative one is taken from the settings file's folder, so a site's
+ * settings and its map travel together. */
+static void key_columns(loader *L, const cJSON *v, tw_site *s)
+{
+    if (cJSON_IsNull(v)) {
+        free(s->columns);
+        s->columns = NULL;
+        return;
+    }
+    char *path = NULL;
+    read_text(L, v, "columns", "columns", 0, &path);
+    if (!path)
+        return;
+    const char *slash = strrchr(L->file, '/');
+    if (path[0] != '/' && slash) {
+        char *joined = tw_asprintf("%.*s/%s", (int)(slash - L->file), L->file, path);
+        free(path);
+        if (!(path = joined)) {
+            oom(L, "columns", "columns");
+            return;
+        }
+    }
+    free(s->columns);
+    s->columns = path;
+}
+
 /* The settings a file may give, in the order docs/site-settings.md lists them. */
 static const struct {
     const char *key;
@@ -420,6 +447,7 @@ static const struct {
     {"service_label_min_a", key_service_min},
     {"language", key_language},
     {"layout", key_layout},
+    {"columns", key_columns},
 };
 
 /* 1-based line of a byte offset, for parse errors. */

@@ -5,6 +5,7 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include "read/tw_column_map.h"
 #include "rules/tw_validate.h"
 
 /* A file that exists, is not a directory and can be opened for reading. */
@@ -16,6 +17,29 @@ static int readable_file(const char *path)
 
 int tw_study_load(tw_study *s, const char *results_path, const char *site_path)
 {
+    return tw_study_load_mapped(s, results_path, site_path, NULL);
+}
+
+/* Results read through the map the command line or the site names, if any. */
+static int read_results(tw_study *s, const char *results_path, const char *columns_path)
+{
+    const char *map_path = columns_path ? columns_path : s->site.columns;
+    if (!map_path)
+        return tw_results_read(results_path, &s->results, &s->diags);
+    tw_column_map map;
+    if (tw_column_map_read(map_path, &map, &s->diags) != 0) {
+        s->unreadable = !readable_file(map_path);
+        tw_column_map_free(&map);
+        return -2;
+    }
+    int rc = tw_results_read_map(results_path, &map, &s->results, &s->diags);
+    tw_column_map_free(&map);
+    return rc;
+}
+
+int tw_study_load_mapped(tw_study *s, const char *results_path, const char *site_path,
+                         const char *columns_path)
+{
     memset(s, 0, sizeof *s);
     tw_diags_init(&s->diags);
     /* tw_site_load() starts from the defaults itself. */
@@ -26,7 +50,10 @@ int tw_study_load(tw_study *s, const char *results_path, const char *site_path)
         s->unreadable = !readable_file(site_path); /* I/O (exit 3), not bad data */
         return -1;
     }
-    if (tw_results_read(results_path, &s->results, &s->diags) != 0) {
+    int rc = read_results(s, results_path, columns_path);
+    if (rc == -2)
+        return -1;
+    if (rc != 0) {
         /* A file that exists and can be read but is not results data is bad data (exit 1);
          * only a file that cannot be read at all is an I/O error (exit 3). */
         s->unreadable = !readable_file(results_path);
