@@ -28,6 +28,7 @@ static const command commands[] = {
     {"due", cmd_due, "list buses whose 5-year study review is overdue or due soon"},
     {"verify", cmd_verify, "check a scanned label's QR payload against the manifest"},
     {"permit", cmd_permit, "draft energized electrical work permits (PDF) from a job file"},
+    {"columns", cmd_columns, "print a starter column map for a study export with its own names"},
     {"layouts", cmd_layouts, "list the shipped label layouts: label size, page, labels per page"},
     {"help", cmd_help, "list the commands"},
     {"version", cmd_version, "print the version"},

@@ -23,6 +23,7 @@ int cmd_due(int argc, char **argv);
 int cmd_verify(int argc, char **argv);
 int cmd_permit(int argc, char **argv);
 int cmd_layouts(int argc, char **argv);
+int cmd_columns(int argc, char **argv);
 
 /* Shared option handling (src/cli/options.c). */
 
