@@ -106,7 +106,7 @@ static void every_error_of_a_map_should_name_its_path(void **state)
         {"{\"columns\": {\"  \": \"equipment_id\"}}", "columns.  ", "not empty"},
         {"{\"columns\": {\"A\": \"equipment_id\", \" A\": \"description\"}}", "columns. A",
          "header given twice"},
-        {"{\"columns\": {\"A\": {\"scale\": 2}}}", "columns.A", "expected a \"field\""},
+        {"{\"columns\": {\"A\": {\"scale\": 2}}}", "columns.A.field", "expected a \"field\""},
         {"{\"columns\": {\"A\": {\"field\": \"gap_mm\", \"scael\": 2}}}", "columns.A.scael",
          "unknown key"},
         {"{\"columns\": {\"A\": {\"field\": \"gap_mm\", \"field\": \"gap_mm\"}}}", "columns.A.field",
