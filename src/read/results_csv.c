@@ -168,6 +168,29 @@ static void warn_unknown_column(csv_reader *rd, size_t i, const char *name)
     free(ex);
 }
 
+/* A header that is not UTF-8 names no column as written: the file is in another encoding. */
+static void hint_encoding(csv_reader *rd)
+{
+    if (rd->map && rd->map->encoding != TW_ENCODING_UTF8)
+        return;
+    for (size_t i = 0; i < rd->ncells; i++) {
+        const unsigned char *s = (const unsigned char *)cell(rd, i);
+        for (size_t j = 0, n = rd->cell_len[i]; j < n;) {
+            uint32_t cp;
+            size_t k = tw_utf8_decode(s + j, n - j, &cp);
+            if (k == 0) {
+                tw_source src = {rd->out->file, rd->row_line, NULL};
+                tw_diag_add(rd->d, TW_WARNING, &src, NULL, NULL,
+                            "the header (column %zu) is not UTF-8; save the file as UTF-8, or "
+                            "set \"encoding\" in a column map (--columns)",
+                            i + 1);
+                return;
+            }
+            j += k;
+        }
+    }
+}
+
 /* 1 when the header is one cell holding semicolons and no commas: a file separated by ';'. */
 static int looks_semicolon_separated(csv_reader *rd)
 {
@@ -198,6 +221,7 @@ static void no_known_column(csv_reader *rd)
  * file: both fail the read. */
 static void read_header(csv_reader *rd)
 {
+    hint_encoding(rd);
     rd->cols = calloc(rd->ncells ? rd->ncells : 1, sizeof *rd->cols);
     size_t *first = calloc(tw_column_count, sizeof *first); /* 1 + position of each column */
     if (!rd->cols || !first) {
@@ -342,6 +366,7 @@ static void check_fields_once(csv_reader *rd)
 
 static void read_header_mapped(csv_reader *rd)
 {
+    hint_encoding(rd);
     size_t n = rd->ncells ? rd->ncells : 1;
     const tw_column_map *m = rd->map;
     rd->mapped = calloc(n, sizeof *rd->mapped);
