@@ -89,6 +89,10 @@ int tw_column_map_read_mem(const char *name, const char *data, size_t len, tw_co
 
 void tw_column_map_free(tw_column_map *m);
 
+/* 1 when s can be named in a map (a source column, a missing-value word, a text constant): not
+ * empty, at most 512 bytes, UTF-8 without control characters. */
+int tw_column_map_name_ok(const char *s);
+
 /* The map's entry for a header cell or key (exact match after trimming), or NULL. */
 const tw_mapped_column *tw_column_map_find(const tw_column_map *m, const char *source);
 

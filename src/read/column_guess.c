@@ -577,22 +577,26 @@ static void emit_csv_map(starter *st, const line_span *lines, size_t n, int utf8
             delim == '\t' ? "tab" : delim == ';' ? ";" : ",", v.decimal_comma ? "," : ".");
     fprintf(st->out, "  \"stop_at_blank_line\": %s,\n  \"columns\": {\n",
             v.footer_line ? "true" : "false");
-    size_t last = 0;
-    for (size_t i = 0; i < k; i++)
-        if (cells[i] && *cells[i])
-            last = i;
-    for (size_t i = 0; i < k; i++) {
+    size_t *emit = malloc((k ? k : 1) * sizeof *emit), count = 0;
+    for (size_t i = 0; emit && i < k; i++) {
         int dup = 0;
         for (size_t j = 0; j < i && cells[i]; j++)
             dup |= cells[j] && !strcmp(cells[i], cells[j]);
-        if (!cells[i] || !*cells[i] || dup) {
+        int named = cells[i] && *cells[i];
+        if (!named || dup || !tw_column_map_name_ok(cells[i]) || i >= TW_MAX_MAP_COLUMNS) {
             snprintf(msg, sizeof msg, "column %zu %s; left out of the map", i + 1,
-                     dup ? "repeats an earlier header" : "has no header");
+                     !named ? "has no header"
+                     : dup  ? "repeats an earlier header"
+                            : "has a header a map cannot name (control characters, more than "
+                              "512 bytes, or past 4096 columns)");
             note(st, (long)header + 1, msg);
             continue;
         }
-        emit_column(st, cells[i], i == last, &v);
+        emit[count++] = i;
     }
+    for (size_t i = 0; i < count; i++)
+        emit_column(st, cells[emit[i]], i + 1 == count, &v);
+    free(emit);
     fputs("  },\n  \"constants\": {},\n  \"missing_values\": [", st->out);
     int first = 1;
     for (size_t w = 0; w < COUNT(missing_words); w++) {
@@ -629,7 +633,8 @@ static int emit_json_map(starter *st, const char *data, size_t len)
         for (const cJSON *o = one ? one : objs; o; o = one ? NULL : o->next) {
             for (const cJSON *kv = cJSON_IsObject(o) ? o->child : NULL; kv; kv = kv->next) {
                 size_t idx;
-                if (!kv->string || tw_map_get(&seen, kv->string, &idx))
+                if (!kv->string || !tw_column_map_name_ok(kv->string) || n >= TW_MAX_MAP_COLUMNS ||
+                    tw_map_get(&seen, kv->string, &idx))
                     continue;
                 if (n == cap) {
                     const char **bigger = realloc(keys, (cap = cap ? cap * 2 : 32) * sizeof *keys);

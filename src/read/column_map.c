@@ -53,7 +53,7 @@ static char *key_path(const char *parent, const char *key, const char *child)
     return p;
 }
 
-static int text_ok(const char *s)
+int tw_column_map_name_ok(const char *s)
 {
     size_t n = strlen(s);
     if (n == 0 || n > TW_MAX_MAP_TEXT)
@@ -290,7 +290,7 @@ static void key_columns(map_loader *L, const cJSON *v)
         tw_trim(source);
         tw_mapped_column *mc = &m->columns[m->column_count];
         size_t seen = 0;
-        if (!text_ok(source)) {
+        if (!tw_column_map_name_ok(source)) {
             map_error(L, at, "expected header text: not empty, at most %d bytes, UTF-8 without "
                              "control characters", TW_MAX_MAP_TEXT);
             free(source);
@@ -324,7 +324,7 @@ static void read_constant(map_loader *L, const cJSON *e, const char *at, tw_map_
 {
     const tw_column *c = k->column;
     int yes = 0;
-    if (c->kind == TW_KIND_TEXT && cJSON_IsString(e) && text_ok(e->valuestring)) {
+    if (c->kind == TW_KIND_TEXT && cJSON_IsString(e) && tw_column_map_name_ok(e->valuestring)) {
         tw_date dt;
         if (c->field == TW_F_STUDY_DATE && tw_date_parse(e->valuestring, &dt) != 0)
             map_error(L, at, "expected a date YYYY-MM-DD");
@@ -397,7 +397,7 @@ static void key_missing_values(map_loader *L, const cJSON *v)
         char *copy = cJSON_IsString(e) ? tw_strdup(e->valuestring) : NULL;
         if (copy)
             tw_trim(copy);
-        if (!copy || !text_ok(copy)) {
+        if (!copy || !tw_column_map_name_ok(copy)) {
             char path[64];
             snprintf(path, sizeof path, "missing_values[%d]", i);
             map_error(L, path, "expected a non-empty string (a cell read as empty), at most %d "
