@@ -358,7 +358,10 @@ int tw_parse_yes_no(const char *s, int *out)
  * 10^k for k <= 22 is exact too, so m / 10^k is one correctly rounded division - the value
  * strtod gives (the fast path of W. D. Clinger, "How to read floating point numbers
  * accurately", PLDI 1990). -1 for anything else, which tw_parse_double then handles. */
-static int parse_plain_decimal(const char *s, double *out)
+#if defined(__GNUC__)
+__attribute__((always_inline)) /* in tw_row_set_cell's loop: 1.6 M instructions per 10,000 buses */
+#endif
+static inline int parse_plain_decimal(const char *s, double *out)
 {
     static const double pow10[] = {1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
                                    1e8,  1e9,  1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
