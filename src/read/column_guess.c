@@ -263,6 +263,7 @@ typedef struct {
     tw_diags *d;
     const char *file;
     FILE *out;
+    unsigned char taken[TW_F_COUNT]; /* text, whole-number and yes/no fields already mapped */
 } starter;
 
 static void note(starter *st, long line, const char *msg)
@@ -523,6 +524,15 @@ static void emit_column(starter *st, const char *h, int last, const data_view *v
 {
     double scale = 1;
     const tw_column *c = tw_column_guess(h, &scale);
+    if (c && c->kind != TW_KIND_NUMBER && st->taken[c->field]++) {
+        char *ex = tw_excerpt(h, strlen(h));
+        char msg[160];
+        snprintf(msg, sizeof msg, "\"%s\" also looks like %s, which an earlier column gives; "
+                 "left null (a map reads such a field from one column)", ex ? ex : "?", c->name);
+        note(st, 0, msg);
+        free(ex);
+        c = NULL;
+    }
     fputs("    ", st->out);
     json_string(st->out, h);
     fputs(": ", st->out);
@@ -662,7 +672,7 @@ static int emit_json_map(starter *st, const char *data, size_t len)
 
 char *tw_column_map_starter(const char *name, const char *data, size_t len, tw_diags *d)
 {
-    starter st = {d, name ? name : "-", NULL};
+    starter st = {d, name ? name : "-", NULL, {0}};
     char *text = NULL;
     size_t text_len = 0;
     st.out = open_memstream(&text, &text_len);
