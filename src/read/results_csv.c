@@ -168,26 +168,35 @@ static void warn_unknown_column(csv_reader *rd, size_t i, const char *name)
     free(ex);
 }
 
-/* A header that is not UTF-8 names no column as written: the file is in another encoding. */
-static void hint_encoding(csv_reader *rd)
+/* 1 + the first header column that is not UTF-8 (read as UTF-8), else 0. */
+static size_t header_not_utf8(csv_reader *rd)
 {
     if (rd->map && rd->map->encoding != TW_ENCODING_UTF8)
-        return;
+        return 0;
     for (size_t i = 0; i < rd->ncells; i++) {
         const unsigned char *s = (const unsigned char *)cell(rd, i);
         for (size_t j = 0, n = rd->cell_len[i]; j < n;) {
             uint32_t cp;
             size_t k = tw_utf8_decode(s + j, n - j, &cp);
-            if (k == 0) {
-                tw_source src = {rd->out->file, rd->row_line, NULL};
-                tw_diag_add(rd->d, TW_WARNING, &src, NULL, NULL,
-                            "the header (column %zu) is not UTF-8; save the file as UTF-8, or "
-                            "set \"encoding\" in a column map (--columns)",
-                            i + 1);
-                return;
-            }
+            if (k == 0)
+                return i + 1;
             j += k;
         }
+    }
+    return 0;
+}
+
+#define NOT_UTF8_HINT \
+    "save the file as UTF-8, or set \"encoding\" in a column map (--columns)"
+
+/* A header that is not UTF-8 names no column as written: the file is in another encoding. */
+static void hint_encoding(csv_reader *rd)
+{
+    size_t bad = header_not_utf8(rd);
+    if (bad) {
+        tw_source src = {rd->out->file, rd->row_line, NULL};
+        tw_diag_add(rd->d, TW_WARNING, &src, NULL, NULL,
+                    "the header (column %zu) is not UTF-8; " NOT_UTF8_HINT, bad);
     }
 }
 
@@ -204,15 +213,16 @@ static int looks_semicolon_separated(csv_reader *rd)
  * so the message says how to read it. */
 static void no_known_column(csv_reader *rd)
 {
-    char msg[640];
+    char msg[800];
     snprintf(msg, sizeof msg,
              "expected a header row of column names such as equipment_id, found none that "
              "tagwright knows; is this a results file? A study export with its own column names "
              "is read with a column map: --columns MAP.json ('tagwright columns FILE' prints one "
-             "to start from)%s",
+             "to start from)%s%s",
              looks_semicolon_separated(rd)
                  ? "; this header has semicolons and no commas: set \"delimiter\": \";\" in the map"
-                 : "");
+                 : "",
+             header_not_utf8(rd) ? "; the header is not UTF-8: " NOT_UTF8_HINT : "");
     fatal_error(rd, rd->row_line, msg);
 }
 
@@ -221,7 +231,6 @@ static void no_known_column(csv_reader *rd)
  * file: both fail the read. */
 static void read_header(csv_reader *rd)
 {
-    hint_encoding(rd);
     rd->cols = calloc(rd->ncells ? rd->ncells : 1, sizeof *rd->cols);
     size_t *first = calloc(tw_column_count, sizeof *first); /* 1 + position of each column */
     if (!rd->cols || !first) {
@@ -255,6 +264,7 @@ static void read_header(csv_reader *rd)
         no_known_column(rd);
         return;
     }
+    hint_encoding(rd);
     for (size_t i = 0; i < rd->ncells; i++)
         if (!rd->cols[i])
             warn_unknown_column(rd, i, cell(rd, i));
