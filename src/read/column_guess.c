@@ -469,7 +469,7 @@ static void look_at_data(const line_span *lines, size_t n, size_t header, char d
 {
     memset(v, 0, sizeof *v);
     size_t rows = 0;
-    for (size_t i = header + 1; i < n && rows < DATA_SAMPLE_LINES; i++) {
+    for (size_t i = header + 1; i < n; i++) {
         if (is_blank_line(&lines[i], delim)) {
             if (rows == 0)
                 continue;
@@ -482,7 +482,8 @@ static void look_at_data(const line_span *lines, size_t n, size_t header, char d
             }
             return;
         }
-        rows++;
+        if (++rows > DATA_SAMPLE_LINES)
+            continue; /* only looking for the end of the table now */
         char **cells;
         size_t k = split_line(lines[i].s, lines[i].len, delim, &cells);
         for (size_t c = 0; c < k; c++) {

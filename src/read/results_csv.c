@@ -554,8 +554,15 @@ static void finish(csv_reader *rd)
                    "expected a closing '\"' before the end of the file");
         return;
     }
-    if (!rd->have_header && !rd->stop)
+    if (!rd->have_header && !rd->stop && rd->header_line > 1) {
+        char msg[160];
+        snprintf(msg, sizeof msg,
+                 "expected a header row on line %ld (header_line in the column map), found no "
+                 "rows from there on", rd->header_line);
+        fatal_error(rd, rd->header_line, msg);
+    } else if (!rd->have_header && !rd->stop) {
         fatal_error(rd, 1, "expected a header row of column names, found no rows at all");
+    }
 }
 
 static void reader_free(csv_reader *rd)

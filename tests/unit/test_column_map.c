@@ -284,6 +284,11 @@ static void a_column_the_file_lacks_should_fail_every_row(void **state)
     assert_int_equal(r.count, 0); /* no row of a file read with a wrong map is trusted */
     done(&m, &r, &d);
 
+    /* a header_line past the end of the file */
+    assert_int_equal(read_mapped_csv(export_map, "a\nb\n", &m, &r, &d), -1);
+    assert_non_null(find_diag(&d, "expected a header row on line 3 (header_line"));
+    done(&m, &r, &d);
+
     /* a header with nothing the map reads: not this export at all */
     assert_int_equal(read_mapped_csv(export_map, "a\nb\nc;d\n1;2\n", &m, &r, &d), -1);
     assert_non_null(find_diag(&d, "is header_line right?"));
