@@ -14,7 +14,9 @@
 
 #include "rules/tw_analysis.h"
 #include "base/tw_date.h"
+#include "base/tw_fonts.h"
 #include "base/tw_map.h"
+#include "base/tw_unicode.h"
 #include "rules/tw_rules.h"
 #include "base/tw_util.h"
 
@@ -449,6 +451,92 @@ static void check_voltage_agreement(const check_ctx *ctx, const tw_bus *b)
     }
 }
 
+/* ---- what a label can show ----------------------------------------------------------------- */
+
+/* An ID is read, compared and typed by people: a character they cannot see (a no-break or
+ * zero-width space, a byte order mark, a bidirectional control) makes two IDs that look the same
+ * name two buses, and `--bus` pick the wrong one. */
+static void check_id_characters(const check_ctx *ctx, tw_row *r)
+{
+    static const tw_field ids[] = {TW_F_EQUIPMENT_ID, TW_F_STUDY_ID};
+    for (size_t i = 0; i < sizeof ids / sizeof ids[0]; i++) {
+        if (!tw_row_has(r, ids[i]))
+            continue;
+        uint32_t cp = tw_id_hidden_char(r->text[ids[i]]);
+        if (!cp)
+            continue;
+        char ch[160];
+        tw_char_describe(cp, ch, sizeof ch);
+        tw_row_diag(ctx->d, r, TW_ERROR, ids[i], NULL,
+                    "contains %s, an invisible or formatting character; expected an ID of "
+                    "visible characters and plain spaces only", ch);
+    }
+}
+
+/* The row's texts that a label prints: each must be drawable exactly as it reads (tw_fonts.h),
+ * or the label would show boxes, drop characters or reverse them. */
+static void check_drawable(const check_ctx *ctx, tw_row *r)
+{
+    static const tw_field printed[] = {TW_F_EQUIPMENT_ID, TW_F_DESCRIPTION, TW_F_LOCATION,
+                                       TW_F_STUDY_ID, TW_F_SCENARIO};
+    for (size_t i = 0; i < sizeof printed / sizeof printed[0]; i++) {
+        uint32_t cp = 0;
+        tw_draw_problem p;
+        if (!tw_row_has(r, printed[i]) ||
+            (p = tw_text_drawable(r->text[printed[i]], &cp)) == TW_DRAW_OK)
+            continue;
+        char why[512];
+        tw_row_diag(ctx->d, r, TW_ERROR, printed[i], NULL, "%s",
+                    tw_draw_problem_text(p, cp, why, sizeof why));
+    }
+}
+
+/* Report that b (at row r) and the bus first seen at row first share a key. */
+static void report_lookalike(const check_ctx *ctx, tw_row *r, const tw_row *other)
+{
+    char at[64];
+    where(other, at, sizeof at);
+    tw_row_diag(ctx->d, r, TW_ERROR, TW_F_EQUIPMENT_ID, NULL,
+                "'%s' and '%s' (%s) are the same ID once case and Unicode compatibility forms "
+                "are set aside (NFKC case folding); expected one spelling per bus",
+                r->text[TW_F_EQUIPMENT_ID], other->text[TW_F_EQUIPMENT_ID], at);
+}
+
+/* Two buses whose IDs differ only in case or in compatibility forms (full-width letters,
+ * ligatures, superscripts) would print as two labels for what a worker reads as one piece of
+ * equipment. Both are reported, each naming the other's line. */
+static void check_lookalike_ids(const check_ctx *ctx)
+{
+    const tw_bus_set *s = ctx->buses;
+    if (!s || s->count < 2)
+        return;
+    tw_map keys;
+    tw_arena arena = {0};
+    tw_map_init(&keys);
+    if (tw_map_reserve(&keys, s->count) != 0)
+        goto oom;
+    for (size_t i = 0; i < s->count; i++) {
+        const tw_bus *b = &s->buses[i];
+        const char *key = b->count ? tw_id_key(b->equipment_id, &arena) : NULL;
+        size_t first;
+        int had = key ? tw_map_get_or_put(&keys, key, i, &first) : b->count ? -1 : 0;
+        if (had < 0)
+            goto oom;
+        if (had == 1) {
+            report_lookalike(ctx, b->rows[0], s->buses[first].rows[0]);
+            report_lookalike(ctx, s->buses[first].rows[0], b->rows[0]);
+        }
+    }
+    goto done;
+oom:
+    if (s->count && s->buses[0].count)
+        tw_row_diag(ctx->d, s->buses[0].rows[0], TW_ERROR, TW_F_EQUIPMENT_ID, NULL,
+                    "out of memory while comparing equipment IDs");
+done:
+    tw_map_free(&keys);
+    tw_arena_free(&arena);
+}
+
 /* ---- the table --------------------------------------------------------------------------- */
 
 static const tw_check checks[] = {
@@ -464,6 +552,8 @@ static const tw_check checks[] = {
     {"ieee1584-range", check_ieee1584_range, NULL},
     {"arcing-below-bolted", check_arcing_below_bolted, NULL},
     {"clearing-time-2s", check_clearing_time, NULL},
+    {"id-characters", check_id_characters, NULL},
+    {"drawable-text", check_drawable, NULL},
     {"one-row-per-scenario", NULL, check_duplicate_ids},
     {"voltage-across-scenarios", NULL, check_voltage_agreement},
 };
@@ -481,5 +571,6 @@ size_t tw_validate(tw_results *r, const tw_bus_set *buses, const tw_site *site, 
         for (size_t c = 0; c < n; c++)
             if (checks[c].bus)
                 checks[c].bus(&ctx, &buses->buses[i]);
+    check_lookalike_ids(&ctx); /* "one-spelling-per-id": across all buses at once */
     return d->errors - before;
 }

@@ -1,0 +1,39 @@
+/*
+ * tw_unicode.h - the Unicode facts tagwright decides with, from ICU (libicu): which characters
+ * cannot be seen, which are written right to left, and when two identifiers are the same.
+ *
+ * Every function takes well-formed UTF-8 (as the readers guarantee) and is safe to call from
+ * several threads. Plain ASCII is answered without ICU.
+ */
+#ifndef TW_UNICODE_H
+#define TW_UNICODE_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+#include "base/tw_util.h"
+
+/* The first character of s that an identifier may not hold because a reader cannot see it, or
+ * it changes how the text around it is shown: format characters (Unicode category Cf: zero-width
+ * space and joiners, the byte order mark, the bidirectional controls U+202A-U+202E and
+ * U+2066-U+2069, soft hyphen), default-ignorable code points (variation selectors, fillers),
+ * space separators other than U+0020 (no-break space, thin space, ideographic space...), line
+ * and paragraph separators, control, private-use, surrogate and unassigned code points. 0 when
+ * s has none. */
+uint32_t tw_id_hidden_char(const char *s);
+
+/* The key under which two identifiers name the same thing: s after Unicode compatibility
+ * normalization with case folding (NFKC_Casefold), so that "MCC-1", "mcc-1" and "ＭＣＣ－１"
+ * share one key. Plain ASCII is only case-folded; an ASCII s without capitals is its own key
+ * and is returned as it is. Other keys are allocated in a. NULL when out of memory or ICU
+ * fails. */
+const char *tw_id_key(const char *s, tw_arena *a);
+
+/* 1 when cp is written right to left (Unicode bidirectional class R or AL: Hebrew, Arabic,
+ * Syriac, Thaana, N'Ko...) or is a bidirectional control; else 0. */
+int tw_char_rtl(uint32_t cp);
+
+/* "U+00A0 NO-BREAK SPACE" (the Unicode name where ICU knows one) into buf of n bytes. */
+void tw_char_describe(uint32_t cp, char *buf, size_t n);
+
+#endif
