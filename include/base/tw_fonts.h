@@ -28,7 +28,8 @@ typedef enum {
     TW_DRAW_OK,
     TW_DRAW_NO_GLYPH,      /* a face has no glyph for the character */
     TW_DRAW_BEYOND_BMP,    /* above U+FFFF */
-    TW_DRAW_RIGHT_TO_LEFT, /* Hebrew, Arabic, ... or a bidirectional control */
+    TW_DRAW_RIGHT_TO_LEFT, /* Hebrew, Arabic, ... */
+    TW_DRAW_BIDI_CONTROL,  /* U+202A-U+202E, U+2066-U+2069 */
     TW_DRAW_NO_FONT,       /* the fonts could not be read, so nothing beyond ASCII is known */
 } tw_draw_problem;
 

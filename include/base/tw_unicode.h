@@ -22,15 +22,17 @@
  * s has none. */
 uint32_t tw_id_hidden_char(const char *s);
 
-/* The key under which two identifiers name the same thing: s after Unicode compatibility
- * normalization with case folding (NFKC_Casefold), so that "MCC-1", "mcc-1" and "ＭＣＣ－１"
- * share one key. Plain ASCII is only case-folded; an ASCII s without capitals is its own key
- * and is returned as it is. Other keys are allocated in a. NULL when out of memory or ICU
- * fails. */
+/* The key under which two identifiers name the same thing: what a reader sees of s after
+ * Unicode compatibility normalization with case folding (NFKC_Casefold), characters that
+ * cannot be seen left out, runs of spaces made one and none at the ends. "MCC-1", "mcc-1",
+ * "ＭＣＣ－１" and "MCC-1" followed by a no-break space share one key. Plain ASCII is only
+ * case-folded and its spaces tidied; an ASCII s already in that form is its own key and is
+ * returned as it is. Other keys are allocated in a. NULL when out of memory or ICU fails. */
 const char *tw_id_key(const char *s, tw_arena *a);
 
 /* 1 when cp is written right to left (Unicode bidirectional class R or AL: Hebrew, Arabic,
- * Syriac, Thaana, N'Ko...) or is a bidirectional control; else 0. */
+ * Syriac, Thaana, N'Ko...), 2 when it is a bidirectional control (embedding, override,
+ * isolate or their pop), else 0. */
 int tw_char_rtl(uint32_t cp);
 
 /* "U+00A0 NO-BREAK SPACE" (the Unicode name where ICU knows one) into buf of n bytes. */

@@ -87,8 +87,9 @@ tw_draw_problem tw_text_drawable(const char *s, uint32_t *cp)
             return TW_DRAW_NO_FONT;
         if (c > 0xFFFF)
             return TW_DRAW_BEYOND_BMP;
-        if (tw_char_rtl(c))
-            return TW_DRAW_RIGHT_TO_LEFT;
+        int rtl = tw_char_rtl(c);
+        if (rtl)
+            return rtl == 1 ? TW_DRAW_RIGHT_TO_LEFT : TW_DRAW_BIDI_CONTROL;
         if (!(covered[c >> 3] & (1u << (c & 7))))
             return TW_DRAW_NO_GLYPH;
     }
@@ -115,6 +116,10 @@ const char *tw_draw_problem_text(tw_draw_problem p, uint32_t cp, char *buf, size
     case TW_DRAW_RIGHT_TO_LEFT:
         snprintf(buf, n, "character %s is right-to-left text, which labels cannot yet shape and "
                  "order correctly; expected left-to-right text", ch);
+        break;
+    case TW_DRAW_BIDI_CONTROL:
+        snprintf(buf, n, "character %s is a bidirectional control, which would change the order "
+                 "in which the text reads; expected text without it", ch);
         break;
     case TW_DRAW_NO_FONT:
         snprintf(buf, n, "character %s cannot be checked: the label fonts %s and %s in %s could "

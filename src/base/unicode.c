@@ -6,6 +6,7 @@
 #include <string.h>
 
 #include <unicode/uchar.h>
+#include <unicode/utf16.h>
 #include <unicode/unorm2.h>
 #include <unicode/ustring.h>
 
@@ -52,6 +53,29 @@ uint32_t tw_id_hidden_char(const char *s)
     return 0;
 }
 
+/* Keep what a reader sees of u[0..n): characters that cannot be seen dropped (NFKC_Casefold
+ * has already made the odd spaces U+0020 and removed the default-ignorable ones), runs of
+ * spaces made one, none at either end. The new length. */
+static int32_t visible_words(UChar *u, int32_t n)
+{
+    int32_t r = 0, w = 0, space = 0;
+    while (r < n) {
+        UChar32 c;
+        U16_NEXT(u, r, n, c);
+        if (c == ' ') {
+            space = w > 0;
+            continue;
+        }
+        if (hidden((uint32_t)c))
+            continue;
+        if (space)
+            u[w++] = ' ';
+        space = 0;
+        U16_APPEND_UNSAFE(u, w, c);
+    }
+    return w;
+}
+
 /* NFKC_Casefold of a non-ASCII s, in a. */
 static const char *icu_key(const char *s, tw_arena *a)
 {
@@ -72,6 +96,8 @@ static const char *icu_key(const char *s, tw_arena *a)
         goto done;
     u_strFromUTF8(in, n16 + 1, NULL, s, -1, &e);
     int32_t m = U_SUCCESS(e) ? unorm2_normalize(nfkc_cf, in, n16, out, cap, &e) : 0;
+    if (U_SUCCESS(e))
+        m = visible_words(out, m);
     int32_t n8 = 0;
     if (U_SUCCESS(e))
         u_strToUTF8(NULL, 0, &n8, out, m, &e);
@@ -93,16 +119,27 @@ const char *tw_id_key(const char *s, tw_arena *a)
     if (!plain_ascii(s))
         return icu_key(s, a);
     const char *p = s;
-    while (*p && !(*p >= 'A' && *p <= 'Z'))
+    while (*p && !(*p >= 'A' && *p <= 'Z') && !(p[0] == ' ' && (p[1] == ' ' || p[1] == '\0')) &&
+           s[0] != ' ')
         p++;
     if (!*p)
-        return s;
-    size_t n = strlen(s);
+        return s; /* already its own key: no capitals, single spaces, none at the ends */
+    size_t n = strlen(s), w = 0;
     char *k = tw_arena_alloc(a, n + 1);
     if (!k)
         return NULL;
-    for (size_t i = 0; i <= n; i++)
-        k[i] = s[i] >= 'A' && s[i] <= 'Z' ? (char)(s[i] - 'A' + 'a') : s[i];
+    int space = 0;
+    for (size_t i = 0; i < n; i++) {
+        if (s[i] == ' ') {
+            space = w > 0;
+            continue;
+        }
+        if (space)
+            k[w++] = ' ';
+        space = 0;
+        k[w++] = s[i] >= 'A' && s[i] <= 'Z' ? (char)(s[i] - 'A' + 'a') : s[i];
+    }
+    k[w] = '\0';
     return k;
 }
 
@@ -113,6 +150,7 @@ int tw_char_rtl(uint32_t cp)
     switch (u_charDirection((UChar32)cp)) {
     case U_RIGHT_TO_LEFT:
     case U_RIGHT_TO_LEFT_ARABIC:
+        return 1;
     case U_RIGHT_TO_LEFT_EMBEDDING:
     case U_RIGHT_TO_LEFT_OVERRIDE:
     case U_RIGHT_TO_LEFT_ISOLATE:
@@ -122,7 +160,7 @@ int tw_char_rtl(uint32_t cp)
     case U_FIRST_STRONG_ISOLATE:
     case U_POP_DIRECTIONAL_FORMAT:
     case U_POP_DIRECTIONAL_ISOLATE:
-        return 1;
+        return 2;
     default:
         return 0;
     }

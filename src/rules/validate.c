@@ -485,6 +485,9 @@ static void check_drawable(const check_ctx *ctx, tw_row *r)
         if (!tw_row_has(r, printed[i]) ||
             (p = tw_text_drawable(r->text[printed[i]], &cp)) == TW_DRAW_OK)
             continue;
+        if ((printed[i] == TW_F_EQUIPMENT_ID || printed[i] == TW_F_STUDY_ID) &&
+            tw_id_hidden_char(r->text[printed[i]]))
+            continue; /* reported by check_id_characters */
         char why[512];
         tw_row_diag(ctx->d, r, TW_ERROR, printed[i], NULL, "%s",
                     tw_draw_problem_text(p, cp, why, sizeof why));
@@ -497,8 +500,9 @@ static void report_lookalike(const check_ctx *ctx, tw_row *r, const tw_row *othe
     char at[64];
     where(other, at, sizeof at);
     tw_row_diag(ctx->d, r, TW_ERROR, TW_F_EQUIPMENT_ID, NULL,
-                "'%s' and '%s' (%s) are the same ID once case and Unicode compatibility forms "
-                "are set aside (NFKC case folding); expected one spelling per bus",
+                "'%s' and '%s' (%s) read as the same ID (compared after Unicode NFKC case "
+                "folding, without invisible characters or extra spaces); expected one spelling "
+                "per bus",
                 r->text[TW_F_EQUIPMENT_ID], other->text[TW_F_EQUIPMENT_ID], at);
 }
 

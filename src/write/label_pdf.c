@@ -3,9 +3,11 @@
  * Each label is planned first (every text box fitted, the QR code encoded and sized) and drawn
  * only when the whole plan fits, so a refused label leaves nothing on the page. */
 #include "write/tw_label_pdf.h"
+#include "base/tw_fonts.h"
 #include "base/tw_text.h"
 
 #include <math.h>
+#include <stdarg.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -77,16 +79,43 @@ static int hash_ok(const char *h)
     return h[64] == '\0';
 }
 
-/* Content rules a posting label must meet; a draft only needs printable text. */
+/* 1 with "PREFIX: what is wrong" in err when text (may be NULL) cannot be drawn as it reads
+ * (tw_fonts.h); a draft is refused for it too, since it would print something else. */
+static int undrawable(const char *text, char *err, size_t errlen, const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 4, 5)))
+#endif
+    ;
+
+static int undrawable(const char *text, char *err, size_t errlen, const char *fmt, ...)
+{
+    uint32_t cp = 0;
+    tw_draw_problem p = text ? tw_text_drawable(text, &cp) : TW_DRAW_OK;
+    if (p == TW_DRAW_OK)
+        return 0;
+    char prefix[256], why[512];
+    va_list ap;
+    va_start(ap, fmt);
+    vsnprintf(prefix, sizeof prefix, fmt, ap);
+    va_end(ap);
+    snprintf(err, errlen, "%s: %s", prefix, tw_draw_problem_text(p, cp, why, sizeof why));
+    return 1;
+}
+
+/* Content rules a posting label must meet; a draft only needs printable, drawable text. */
 static int check_label(const tw_label *l, const char *payload, char *err, size_t errlen)
 {
     const char *id = label_id(l);
-    for (int k = 0; k < TW_L_COUNT; k++)
+    for (int k = 0; k < TW_L_COUNT; k++) {
         if (l->value[k] && !tw_text_ok(l->value[k])) {
             snprintf(err, errlen, "label %s: %s is not printable UTF-8 text", id,
                      tw_label_key_name((tw_label_key)k));
             return -1;
         }
+        if (undrawable(l->value[k], err, errlen, "label %s: %s", id,
+                       tw_label_key_name((tw_label_key)k)))
+            return -1;
+    }
     if (l->signal != TW_SIGNAL_WARNING && l->signal != TW_SIGNAL_DANGER) {
         snprintf(err, errlen, "label %s: unknown signal word", id);
         return -1;
@@ -859,6 +888,8 @@ static int plan_footer(tw_label_doc *doc, const tw_site *site, char *err, size_t
             snprintf(err, errlen, "site caution %zu is not printable UTF-8 text", i + 1);
             return -1;
         }
+        if (undrawable(c, err, errlen, "site caution %zu", i + 1))
+            return -1;
         len += strlen(c) + 1;
     }
     if (!(doc->footer = malloc(len)))
