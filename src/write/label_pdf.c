@@ -270,6 +270,9 @@ static int fit_pair(const tw_pdf_doc *d, block *b, row *r, double w, double cap_
     }
     r->n = tw_wrap(f, r->pt, r->text, avail, r->lines, ROW_MAX_LINES);
     double value_h = r->n * r->pt * TW_LEADING, cap_h = r->cap_n * s * TW_LEADING;
+    if (!stacked) /* the value's first baseline is level with the caption's (draw_row), so a
+                   * value set smaller than its caption starts lower by the difference */
+        value_h += fmax(0, tw_baseline_drop(d->regular, s) - tw_baseline_drop(f, r->pt));
     r->h = r->space + (stacked ? cap_h + value_h : fmax(value_h, cap_h));
     return 0;
 }
@@ -871,6 +874,9 @@ static int grow_footer(tw_label_doc *doc, int n, char *err, size_t errlen)
     if (!lay->qr_side) {
         lay->qr.y += grow;
         lay->study.y += grow;
+    } else if (lay->study.w > 0) { /* the study box under the QR box gives up the room too */
+        lay->study.y += grow;
+        lay->study.h = fmax(0, lay->study.h - grow);
     }
     doc->footer_pt = pt;
     return 0;
