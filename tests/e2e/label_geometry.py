@@ -131,14 +131,42 @@ def one_case(rng, tw, wrap, layout_name, layout, lang, work, n):
     site = os.path.join(work, "s%d.json" % n)
     with open(site, "w") as f:
         json.dump({"language": lang, "cautions": [c for c in cautions if c]}, f)
+    what = "%s %s case %d (caution lengths %s)" % (layout_name, lang, n,
+                                                  [len(c) for c in cautions])
+    return run_case(tw, wrap, csv, site, layout_name, layout, work, n, what)
+
+
+# The known failing case of issue 13: a long site caution on the side-QR layouts grew the
+# footer under "Review due" (and in Spanish under "Fecha del estudio"). Each printed over the
+# cautions before; now each prints clear of them or is refused.
+FIXED_BUS = {"equipment_id": "BI-PNL-1", "description": "Panel", "location": "Room 1",
+             "study_id": "ST-1", "study_date": "2024-01-31", "scenario": "max",
+             "nominal_voltage_v": "480", "working_distance_in": "18",
+             "incident_energy_cal_cm2": "5.2", "arc_flash_boundary_in": "40"}
+FIXED = [(layout, lang, n) for layout in ("letter-3.75x3.25-2x3", "a4-105x74mm-2x2")
+         for lang in ("en", "es") for n in (150, 200, 350, 400)]
+
+
+def fixed_case(tw, wrap, layouts_dir, layout_name, lang, length, work, n):
+    with open(os.path.join(layouts_dir, layout_name + ".json")) as f:
+        layout = json.load(f)
+    caution = ("Keep this door closed and locked; " * 30)[:length].strip()
+    csv, site = os.path.join(work, "f%d.csv" % n), os.path.join(work, "f%d.json" % n)
+    with open(csv, "w") as f:
+        f.write(",".join(FIXED_BUS) + "\n" + ",".join(FIXED_BUS.values()) + "\n")
+    with open(site, "w") as f:
+        json.dump({"language": lang, "cautions": [caution]}, f)
+    return run_case(tw, wrap, csv, site, layout_name, layout, work, n,
+                    "%s %s with a %d-character site caution" % (layout_name, lang, length))
+
+
+def run_case(tw, wrap, csv, site, layout_name, layout, work, n, what):
     pdf = os.path.join(work, "l%d.pdf" % n)
     if os.path.exists(pdf):
         os.unlink(pdf)
     cmd = wrap + [tw, "labels", csv, "--site", site, "--layout", layout_name, "--out", pdf,
                   "--manifest", os.path.join(work, "m%d.json" % n), "--date", "2025-06-01"]
     run = subprocess.run(cmd, capture_output=True, text=True)
-    what = "%s %s case %d (caution lengths %s)" % (layout_name, lang, n,
-                                                  [len(c) for c in cautions])
     if run.returncode == 0:
         problems = geometry_problems(pdf, layout)
         return "printed", ["%s: %s" % (what, p) for p in problems[:5]]
@@ -163,6 +191,11 @@ def main():
     rng = random.Random(seed)
     names = sorted(f[:-5] for f in os.listdir(layouts_dir) if f.endswith(".json"))
     failures, counts, n = [], {"printed": 0, "refused": 0}, 0
+    for layout_name, lang, length in FIXED:
+        n += 1
+        kind, problems = fixed_case(tw, wrap, layouts_dir, layout_name, lang, length, work, n)
+        counts[kind] += 1
+        failures += problems
     for name in names:
         with open(os.path.join(layouts_dir, name + ".json")) as f:
             layout = json.load(f)
@@ -174,9 +207,10 @@ def main():
                 failures += problems
     for p in failures:
         print("  " + p)
-    print("geometry: %d cases over %d layouts x %d languages (seed %d): %d printed, %d refused, "
-          "%d problems" % (n, len(names), len(LANGUAGES), seed, counts["printed"],
-                           counts["refused"], len(failures)))
+    print("geometry: %d cases (%d fixed, then %d random over %d layouts x %d languages, seed "
+          "%d): %d printed, %d refused, %d problems" %
+          (n, len(FIXED), n - len(FIXED), len(names), len(LANGUAGES), seed, counts["printed"],
+           counts["refused"], len(failures)))
     sys.exit(1 if failures else 0)
 
 
