@@ -11,8 +11,6 @@
 #include <stddef.h>
 #include <stdint.h>
 
-#include "base/tw_util.h"
-
 /* The first character of s that an identifier may not hold because a reader cannot see it, or
  * it changes how the text around it is shown: format characters (Unicode category Cf: zero-width
  * space and joiners, the byte order mark, the bidirectional controls U+202A-U+202E and
@@ -26,9 +24,11 @@ uint32_t tw_id_hidden_char(const char *s);
  * Unicode compatibility normalization with case folding (NFKC_Casefold), characters that
  * cannot be seen left out, runs of spaces made one and none at the ends. "MCC-1", "mcc-1",
  * "ＭＣＣ－１" and "MCC-1" followed by a no-break space share one key. Plain ASCII is only
- * case-folded and its spaces tidied; an ASCII s already in that form is its own key and is
- * returned as it is. Other keys are allocated in a. NULL when out of memory or ICU fails. */
-const char *tw_id_key(const char *s, tw_arena *a);
+ * case-folded and its spaces tidied, without ICU. Written NUL-terminated to key (n bytes);
+ * returns its length, or -1 when it does not fit or ICU fails. TW_ID_KEY_MAX bytes hold the
+ * key of any identifier of up to 64 bytes. */
+#define TW_ID_KEY_MAX 4096
+long tw_id_key(const char *s, char *key, size_t n);
 
 /* 1 when cp is written right to left (Unicode bidirectional class R or AL: Hebrew, Arabic,
  * Syriac, Thaana, N'Ko...), 2 when it is a bidirectional control (embedding, override,

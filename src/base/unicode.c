@@ -1,6 +1,7 @@
 /* unicode.c - hidden characters, direction and identifier keys, through ICU (see tw_unicode.h). */
 #include "base/tw_unicode.h"
 
+#include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -9,6 +10,8 @@
 #include <unicode/utf16.h>
 #include <unicode/unorm2.h>
 #include <unicode/ustring.h>
+
+#include "base/tw_util.h"
 
 static int plain_ascii(const char *s)
 {
@@ -76,71 +79,61 @@ static int32_t visible_words(UChar *u, int32_t n)
     return w;
 }
 
-/* NFKC_Casefold of a non-ASCII s, in a. */
-static const char *icu_key(const char *s, tw_arena *a)
+/* NFKC_Casefold of a non-ASCII s, tidied by visible_words(), into key (n bytes). */
+static long icu_key(const char *s, char *key, size_t n)
 {
     UErrorCode e = U_ZERO_ERROR;
     const UNormalizer2 *nfkc_cf = unorm2_getNFKCCasefoldInstance(&e);
     if (U_FAILURE(e))
-        return NULL;
+        return -1;
     int32_t n16 = 0;
     u_strFromUTF8(NULL, 0, &n16, s, -1, &e); /* the length it needs */
     e = U_ZERO_ERROR;
     if (n16 > (1 << 20))
-        return NULL; /* identifiers are at most a few dozen characters */
+        return -1; /* identifiers are at most a few dozen characters */
     /* NFKC expands a UTF-16 unit into at most 18 (U+FDFA); casefolding triples at most. */
     int32_t cap = n16 * 54 + 1;
     UChar *in = malloc((size_t)(n16 + 1) * sizeof *in), *out = malloc((size_t)cap * sizeof *out);
-    const char *key = NULL;
-    if (!in || !out)
-        goto done;
-    u_strFromUTF8(in, n16 + 1, NULL, s, -1, &e);
-    int32_t m = U_SUCCESS(e) ? unorm2_normalize(nfkc_cf, in, n16, out, cap, &e) : 0;
-    if (U_SUCCESS(e))
-        m = visible_words(out, m);
-    int32_t n8 = 0;
-    if (U_SUCCESS(e))
-        u_strToUTF8(NULL, 0, &n8, out, m, &e);
-    if (e == U_BUFFER_OVERFLOW_ERROR)
-        e = U_ZERO_ERROR;
-    char *k = U_SUCCESS(e) ? tw_arena_alloc(a, (size_t)n8 + 1) : NULL;
-    if (k) {
-        u_strToUTF8(k, n8 + 1, NULL, out, m, &e);
-        key = U_SUCCESS(e) ? k : NULL;
+    long len = -1;
+    if (in && out) {
+        u_strFromUTF8(in, n16 + 1, NULL, s, -1, &e);
+        int32_t m = U_SUCCESS(e) ? unorm2_normalize(nfkc_cf, in, n16, out, cap, &e) : 0;
+        if (U_SUCCESS(e))
+            m = visible_words(out, m);
+        int32_t n8 = 0;
+        if (U_SUCCESS(e) && n <= INT32_MAX)
+            u_strToUTF8(key, (int32_t)n, &n8, out, m, &e);
+        /* a key that fills n exactly is not terminated: U_STRING_NOT_TERMINATED_WARNING */
+        if (e == U_ZERO_ERROR && (size_t)n8 < n)
+            len = n8;
     }
-done:
     free(in);
     free(out);
-    return key;
+    return len;
 }
 
-const char *tw_id_key(const char *s, tw_arena *a)
+long tw_id_key(const char *s, char *key, size_t n)
 {
     if (!plain_ascii(s))
-        return icu_key(s, a);
-    const char *p = s;
-    while (*p && !(*p >= 'A' && *p <= 'Z') && !(p[0] == ' ' && (p[1] == ' ' || p[1] == '\0')) &&
-           s[0] != ' ')
-        p++;
-    if (!*p)
-        return s; /* already its own key: no capitals, single spaces, none at the ends */
-    size_t n = strlen(s), w = 0;
-    char *k = tw_arena_alloc(a, n + 1);
-    if (!k)
-        return NULL;
+        return icu_key(s, key, n);
+    size_t w = 0;
     int space = 0;
-    for (size_t i = 0; i < n; i++) {
-        if (s[i] == ' ') {
+    for (const char *p = s; *p; p++) {
+        if (*p == ' ') {
             space = w > 0;
             continue;
         }
+        if (w + space + 1 >= n)
+            return -1;
         if (space)
-            k[w++] = ' ';
+            key[w++] = ' ';
         space = 0;
-        k[w++] = s[i] >= 'A' && s[i] <= 'Z' ? (char)(s[i] - 'A' + 'a') : s[i];
+        key[w++] = *p >= 'A' && *p <= 'Z' ? (char)(*p - 'A' + 'a') : *p;
     }
-    k[w] = '\0';
-    return k;
+    if (n == 0)
+        return -1;
+    key[w] = '\0';
+    return (long)w;
 }
 
 int tw_char_rtl(uint32_t cp)

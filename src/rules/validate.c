@@ -8,6 +8,7 @@
 #include "rules/tw_validate.h"
 
 #include <math.h>
+#include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -506,39 +507,65 @@ static void report_lookalike(const check_ctx *ctx, tw_row *r, const tw_row *othe
                 r->text[TW_F_EQUIPMENT_ID], other->text[TW_F_EQUIPMENT_ID], at);
 }
 
-/* Two buses whose IDs differ only in case or in compatibility forms (full-width letters,
- * ligatures, superscripts) would print as two labels for what a worker reads as one piece of
- * equipment. Both are reported, each naming the other's line. */
+/* The key of bus i's ID into key (TW_ID_KEY_MAX bytes), hashed (FNV-1a); -1 when it cannot
+ * be made. */
+static int id_key_hash(const tw_bus_set *s, size_t i, char *key, uint32_t *hash)
+{
+    long n = tw_id_key(s->buses[i].equipment_id, key, TW_ID_KEY_MAX);
+    uint32_t h = 2166136261u;
+    for (long k = 0; k < n; k++)
+        h = (h ^ (unsigned char)key[k]) * 16777619u;
+    *hash = h;
+    return n < 0 ? -1 : 0;
+}
+
+/* Two buses whose IDs differ only in case, compatibility forms (full-width letters,
+ * superscripts, ligatures), invisible characters or spacing would print as two labels for
+ * what a worker reads as one piece of equipment. Both are reported, each naming the other's
+ * line. A table of key hashes (8 bytes a bus) rather than of keys: the keys are made again
+ * only when two hashes meet. */
 static void check_lookalike_ids(const check_ctx *ctx)
 {
     const tw_bus_set *s = ctx->buses;
-    if (!s || s->count < 2)
+    if (!s || s->count < 2 || s->count > UINT32_MAX / 4)
         return;
-    tw_map keys;
-    tw_arena arena = {0};
-    tw_map_init(&keys);
-    if (tw_map_reserve(&keys, s->count) != 0)
-        goto oom;
-    for (size_t i = 0; i < s->count; i++) {
-        const tw_bus *b = &s->buses[i];
-        const char *key = b->count ? tw_id_key(b->equipment_id, &arena) : NULL;
-        size_t first;
-        int had = key ? tw_map_get_or_put(&keys, key, i, &first) : b->count ? -1 : 0;
-        if (had < 0)
-            goto oom;
-        if (had == 1) {
-            report_lookalike(ctx, b->rows[0], s->buses[first].rows[0]);
-            report_lookalike(ctx, s->buses[first].rows[0], b->rows[0]);
-        }
-    }
-    goto done;
-oom:
-    if (s->count && s->buses[0].count)
+    size_t cap = 16;
+    while (cap < 2 * s->count)
+        cap *= 2;
+    struct slot {
+        uint32_t hash, bus; /* bus + 1; 0: empty */
+    } *table = calloc(cap, sizeof *table);
+    char *key = malloc(2 * TW_ID_KEY_MAX), *other = key + TW_ID_KEY_MAX;
+    if (!table || !key) {
         tw_row_diag(ctx->d, s->buses[0].rows[0], TW_ERROR, TW_F_EQUIPMENT_ID, NULL,
                     "out of memory while comparing equipment IDs");
+        goto done;
+    }
+    for (size_t i = 0; i < s->count; i++) {
+        uint32_t h, h2;
+        if (s->buses[i].count == 0)
+            continue;
+        if (id_key_hash(s, i, key, &h) != 0) {
+            tw_row_diag(ctx->d, s->buses[i].rows[0], TW_ERROR, TW_F_EQUIPMENT_ID, NULL,
+                        "could not be compared with the other IDs (Unicode normalization "
+                        "failed); expected an ID of up to %d bytes", TW_MAX_ID_BYTES);
+            continue;
+        }
+        size_t at = h & (cap - 1);
+        for (; table[at].bus; at = (at + 1) & (cap - 1)) {
+            size_t j = table[at].bus - 1;
+            if (table[at].hash != h || id_key_hash(s, j, other, &h2) != 0 || strcmp(key, other))
+                continue;
+            report_lookalike(ctx, s->buses[i].rows[0], s->buses[j].rows[0]);
+            report_lookalike(ctx, s->buses[j].rows[0], s->buses[i].rows[0]);
+            break;
+        }
+        if (!table[at].bus)
+            table[at] = (struct slot){h, (uint32_t)(i + 1)};
+    }
 done:
-    tw_map_free(&keys);
-    tw_arena_free(&arena);
+    free(table);
+    free(key);
 }
 
 /* ---- the table --------------------------------------------------------------------------- */
