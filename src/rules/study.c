@@ -35,6 +35,7 @@ int tw_study_load(tw_study *s, const char *results_path, const char *site_path)
     if (tw_bus_set_build(&s->results, &s->buses) != 0)
         return -1;
     tw_validate(&s->results, &s->buses, &s->site, &s->diags);
+    s->study_errors = tw_bus_set_attribute(&s->buses, &s->diags);
     return 0;
 }
 
