@@ -317,9 +317,10 @@ static int print_batch(const diff_args *a, side *nw, const side *o, const compar
         fprintf(stderr, "tagwright diff: %s\n", err);
         return TW_EXIT_IO;
     }
-    if (c->count[K_ERRORS]) {
-        fprintf(stderr, "tagwright diff: %zu bus%s in %s with errors; no labels written\n",
-                c->count[K_ERRORS], c->count[K_ERRORS] == 1 ? "" : "es", a->new_path);
+    if (c->count[K_ERRORS] || nw->st.study_errors) {
+        fprintf(stderr, "tagwright diff: %zu bus%s in %s with errors%s; no labels written\n",
+                c->count[K_ERRORS], c->count[K_ERRORS] == 1 ? "" : "es", a->new_path,
+                nw->st.study_errors ? ", and errors that concern no one bus" : "");
         return TW_EXIT_DATA;
     }
     size_t n = c->count[K_ADDED] + c->count[K_CHANGED];
@@ -394,7 +395,7 @@ int cmd_diff(int argc, char **argv)
         print_text(&a, &o, &nw, &c);
     if (rc == TW_EXIT_OK && a.out)
         rc = print_batch(&a, &nw, &o, &c);
-    int any_errors = c.count[K_ERRORS] > 0;
+    int any_errors = c.count[K_ERRORS] > 0 || o.st.study_errors || nw.st.study_errors;
     for (size_t i = 0; i < c.n; i++)
         any_errors |= c.e[i].old_bad;
     if (rc == TW_EXIT_OK && any_errors)
