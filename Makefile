@@ -52,7 +52,7 @@ $(BIN): $(BUILD)/obj/main.o $(BUILD)/libtagwright.a
 	@$(if $(V),true,echo "  LINK  $@")
 	$(Q)$(CC) $(CFLAGS) $(LDFLAGS) -o $@ $^ $(LDLIBS)
 
-$(BUILD)/tests/%: tests/unit/%.c tests/unit/tw_test.h tests/same_results.h $(BUILD)/libtagwright.a | $(BUILD)/tests
+$(BUILD)/tests/%: tests/unit/%.c tests/unit/tw_test.h tests/same_results.h tests/fail_closed.h $(BUILD)/libtagwright.a | $(BUILD)/tests
 	@$(if $(V),true,echo "  TEST  $@")
 	$(Q)$(CC) $(CPPFLAGS) -Itests/unit $(CFLAGS) $(LDFLAGS) -o $@ $< $(BUILD)/libtagwright.a $(LDLIBS) -lcmocka
 
@@ -97,7 +97,7 @@ FUZZ_SRC      = $(wildcard tests/fuzz/fuzz_*.c)
 FUZZ_BINS     = $(FUZZ_SRC:tests/fuzz/%.c=$(BUILD)/fuzz/%)
 FUZZ_SAN      = -fsanitize=address,undefined -fno-sanitize-recover=all
 
-$(BUILD)/fuzz/%: tests/fuzz/%.c tests/fuzz/fuzz_common.h tests/same_results.h $(BUILD)/libtagwright.a
+$(BUILD)/fuzz/%: tests/fuzz/%.c tests/fuzz/fuzz_common.h tests/same_results.h tests/fail_closed.h $(BUILD)/libtagwright.a
 	@mkdir -p $(@D)
 	$(CC) $(CPPFLAGS) -Itests/fuzz $(CFLAGS) -fsanitize=fuzzer $(LDFLAGS) -o $@ $< \
 	  $(BUILD)/libtagwright.a $(LDLIBS)

@@ -4,6 +4,7 @@
 
 #include <ctype.h>
 #include <errno.h>
+#include <float.h>
 #include <math.h>
 #include <stdarg.h>
 #include <stdint.h>
@@ -308,6 +309,13 @@ void tw_row_set_number(tw_row *r, const tw_column *c, double v, tw_diags *d)
     }
     if (c->kind == TW_KIND_INTEGER && v != floor(v)) {
         tw_row_diag(d, r, TW_ERROR, f, c->name, "expected a whole number, got %g", v);
+        tw_row_mark_invalid(r, f);
+        return;
+    }
+    if (v != 0 && fabs(v) < DBL_MIN) { /* CSV's strtod refuses these as out of range: so here */
+        tw_row_diag(d, r, TW_ERROR, f, c->name,
+                    "expected a number within the range of a double, got %g (below %g)", v,
+                    DBL_MIN);
         tw_row_mark_invalid(r, f);
         return;
     }

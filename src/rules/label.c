@@ -584,7 +584,17 @@ static void derive_ppe_and_signal(deriver *D, double rating)
 static double round_up_to(double v, double per_unit)
 {
     double x = v * per_unit;
-    return ceil(x - 1e-9 * (fabs(x) > 1 ? fabs(x) : 1)) / per_unit;
+    double steps = ceil(x - 1e-9 * (fabs(x) > 1 ? fabs(x) : 1)) + 0.0;
+    return (x > 0 && steps < 1 ? 1 : steps) / per_unit;
+}
+
+/* A rounded value the label can print: finite (a huge value overflows when scaled). */
+static int printable_rounded(deriver *D, tw_field f, double rounded, double given)
+{
+    if (isfinite(rounded) && rounded > 0)
+        return 1;
+    report(D, TW_ERROR, f, "%g is too large to print; expected a finite value", given);
+    return 0;
 }
 
 /*
@@ -625,10 +635,12 @@ static void derive_service(deriver *D, const tw_bus *bus, const char *print_date
     if (amps < D->site->service_label_min_a)
         return;
     D->row = max_fault_row(bus, governing);
-    if (need_number(D, TW_F_BOLTED_FAULT_KA, "available fault current, NEC 110.16(B)", &ka) == 0)
+    if (need_number(D, TW_F_BOLTED_FAULT_KA, "available fault current, NEC 110.16(B)", &ka) == 0 &&
+        printable_rounded(D, TW_F_BOLTED_FAULT_KA, round_up_to(ka, 10), ka))
         setf(D, TW_L_AVAILABLE_FAULT, "%.1f kA", round_up_to(ka, 10));
     if (need_number(D, TW_F_CLEARING_TIME_S, "clearing time of the service overcurrent device, "
-                    "NEC 110.16(B)", &s) == 0)
+                    "NEC 110.16(B)", &s) == 0 &&
+        printable_rounded(D, TW_F_CLEARING_TIME_S, round_up_to(s, 1000), s))
         setf(D, TW_L_SERVICE_CLEARING_TIME, "%.3f s", round_up_to(s, 1000));
     D->row = governing;
     tw_date date;

@@ -94,11 +94,13 @@ double tw_ppe_category_rating(int category)
  * when scaled, and must not round up to 6.4. 1e-9 is far below any printed digit. */
 #define TW_ROUND_SLACK 1e-9
 
-/* Smallest whole number of steps not below x (x already scaled to steps). */
+/* Smallest whole number of steps not below x (x already scaled to steps). Rounding toward
+ * safety never gives zero for a value above zero (at least one step), nor negative zero. */
 static double ceil_steps(double x)
 {
     double slack = TW_ROUND_SLACK * (fabs(x) > 1 ? fabs(x) : 1);
-    return ceil(x - slack);
+    double steps = ceil(x - slack) + 0.0; /* + 0.0 turns -0 into 0 */
+    return x > 0 && steps < 1 ? 1 : steps;
 }
 
 double tw_round_energy_up(double cal)

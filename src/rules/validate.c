@@ -92,27 +92,31 @@ static void check_required(const check_ctx *ctx, tw_row *r)
                 "the working distance at which the incident energy was calculated");
 }
 
-/* Values that cannot be zero or negative (and, for motor contribution, negative). */
+/* Values that cannot be zero or negative (and, for motor contribution, negative). A value
+ * printed on a label must also not print as zero: `prints_as_zero` is half the step the label
+ * prints it in (0.1 cal/cm2, whole mm, 0.1 kA, 0.001 s), below which ordinary rounding would
+ * show 0 - such a value is a slip in the data (1e-12 cal/cm2), not a hazard level. */
 static const struct {
     tw_field field;
     const char *unit;
     int zero_ok;
+    double prints_as_zero;
 } positive_fields[] = {
-    {TW_F_NOMINAL_VOLTAGE_V, "V", 0},
-    {TW_F_INCIDENT_ENERGY_CAL, "cal/cm2", 0}, /* a label must never say 0 cal/cm2 */
-    {TW_F_WORKING_DISTANCE_MM, "mm", 0},
-    {TW_F_ARC_FLASH_BOUNDARY_MM, "mm", 0},
-    {TW_F_SOURCE_FAULT_KA, "kA", 0},
-    {TW_F_BOLTED_FAULT_KA, "kA", 0},
-    {TW_F_ARCING_CURRENT_KA, "kA", 0},
-    {TW_F_CLEARING_TIME_S, "s", 0},
-    {TW_F_GAP_MM, "mm", 0},
-    {TW_F_DISTANCE_EXPONENT, "", 0},
-    {TW_F_SERVICE_RATING_A, "A", 0},
-    {TW_F_XFMR_KVA, "kVA", 0},
-    {TW_F_XFMR_Z_PERCENT, "%", 0},
-    {TW_F_XFMR_SECONDARY_V, "V", 0},
-    {TW_F_MOTOR_CONTRIBUTION_KA, "kA", 1}, /* 0: no motors */
+    {TW_F_NOMINAL_VOLTAGE_V, "V", 0, 0.5},
+    {TW_F_INCIDENT_ENERGY_CAL, "cal/cm2", 0, 0.05}, /* a label must never say 0 cal/cm2 */
+    {TW_F_WORKING_DISTANCE_MM, "mm", 0, 0.5},
+    {TW_F_ARC_FLASH_BOUNDARY_MM, "mm", 0, 0.5},
+    {TW_F_SOURCE_FAULT_KA, "kA", 0, 0},
+    {TW_F_BOLTED_FAULT_KA, "kA", 0, 0.05},
+    {TW_F_ARCING_CURRENT_KA, "kA", 0, 0},
+    {TW_F_CLEARING_TIME_S, "s", 0, 0.0005},
+    {TW_F_GAP_MM, "mm", 0, 0},
+    {TW_F_DISTANCE_EXPONENT, "", 0, 0},
+    {TW_F_SERVICE_RATING_A, "A", 0, 0},
+    {TW_F_XFMR_KVA, "kVA", 0, 0},
+    {TW_F_XFMR_Z_PERCENT, "%", 0, 0},
+    {TW_F_XFMR_SECONDARY_V, "V", 0, 0},
+    {TW_F_MOTOR_CONTRIBUTION_KA, "kA", 1, 0}, /* 0: no motors */
 };
 
 static void check_positive(const check_ctx *ctx, tw_row *r)
@@ -121,12 +125,15 @@ static void check_positive(const check_ctx *ctx, tw_row *r)
         tw_field f = positive_fields[i].field;
         if (!tw_row_has(r, f))
             continue;
-        double v = r->num[f];
+        double v = r->num[f], tiny = positive_fields[i].prints_as_zero;
+        const char *sp = *positive_fields[i].unit ? " " : "", *unit = positive_fields[i].unit;
         int ok = positive_fields[i].zero_ok ? v >= 0 : v > 0; /* false for NaN */
         if (!ok)
             tw_row_diag(ctx->d, r, TW_ERROR, f, NULL, "expected a value %s 0, got %g%s%s",
-                        positive_fields[i].zero_ok ? "of at least" : "greater than", v,
-                        *positive_fields[i].unit ? " " : "", positive_fields[i].unit);
+                        positive_fields[i].zero_ok ? "of at least" : "greater than", v, sp, unit);
+        else if (v < tiny)
+            tw_row_diag(ctx->d, r, TW_ERROR, f, NULL, "%g%s%s would print as 0 on the label; "
+                        "expected at least %g%s%s", v, sp, unit, tiny, sp, unit);
     }
 }
 

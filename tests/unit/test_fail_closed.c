@@ -16,14 +16,11 @@
 #include "tw_test.h"
 
 #include <dirent.h>
-#include <fcntl.h>
 #include <sys/stat.h>
 #include <unistd.h>
 
-#include "base/tw_date.h"
+#include "../fail_closed.h"
 #include "cli/tw_cli.h"
-#include "rules/tw_label.h"
-#include "rules/tw_study.h"
 
 #define DEFAULT_CASES 2000
 
@@ -268,26 +265,6 @@ static void path_in(char *out, size_t n, const char *name)
     snprintf(out, n, "%s/%s", dir, name);
 }
 
-/* Run a command with its standard output and error sent to /dev/null. */
-static int run_quiet(int (*cmd)(int, char **), int argc, char **argv)
-{
-    fflush(stdout);
-    fflush(stderr);
-    int out = dup(1), err = dup(2), null = open("/dev/null", O_WRONLY);
-    assert_true(out >= 0 && err >= 0 && null >= 0);
-    dup2(null, 1);
-    dup2(null, 2);
-    int rc = cmd(argc, argv);
-    fflush(stdout);
-    fflush(stderr);
-    dup2(out, 1);
-    dup2(err, 2);
-    close(out);
-    close(err);
-    close(null);
-    return rc;
-}
-
 /* Names in the directory other than the inputs; 0 when it holds only them. */
 static size_t outputs_left(void)
 {
@@ -328,35 +305,6 @@ static void write_file(const char *name, const char *data, size_t len)
     assert_int_equal(fclose(f), 0);
 }
 
-/* The oracle for a command about one bus: 1 when `check` on the file reports an error that
- * names that bus or names no bus (or could not keep every finding, or could not read the
- * file). Read from the findings check prints, not from the attribution code under test. */
-static int check_blames(const char *results, const char *bus)
-{
-    tw_study st;
-    int blamed = tw_study_load(&st, results, NULL) != 0;
-    size_t kept = 0;
-    for (size_t i = 0; i < st.diags.count; i++) {
-        const tw_diag *g = &st.diags.items[i];
-        if (g->severity != TW_ERROR)
-            continue;
-        kept++;
-        if (!g->equipment_id || !strcmp(g->equipment_id, bus))
-            blamed = 1;
-    }
-    blamed |= kept < st.diags.errors;
-    const tw_bus *b = blamed ? NULL : tw_bus_set_find(&st.buses, bus);
-    if (b) { /* check derives the label of a bus without errors: so does the oracle */
-        char today[11];
-        tw_date_format(tw_date_today(), today);
-        tw_label l = {0};
-        blamed |= tw_label_derive(b, &st.site, today, &l, &st.diags) != 0;
-        tw_label_free(&l);
-    }
-    tw_study_free(&st);
-    return blamed;
-}
-
 typedef struct {
     size_t cases, check_errors, refused, posted;
 } tally;
@@ -371,10 +319,10 @@ static void one_case(const char *name, const char *seed_name, tally *t)
     path_in(out, sizeof out, "out.pdf");
     path_in(outdir, sizeof outdir, "out-permit.pdf");
     char *check_argv[] = {"check", results, NULL};
-    int check_rc = run_quiet(cmd_check, 2, check_argv);
+    int check_rc = fc_run_quiet(cmd_check, 2, check_argv);
     t->cases++;
     t->check_errors += check_rc != 0;
-    int blames_swg = check_blames(results, "PF-SWG-1");
+    int blames_swg = fc_check_blames(results, "PF-SWG-1");
     struct {
         int (*cmd)(int, char **);
         char *argv[12];
@@ -397,7 +345,7 @@ static void one_case(const char *name, const char *seed_name, tally *t)
         int must_refuse = runs[i].one_bus ? blames_swg : check_rc != 0;
         if (!must_refuse && below(8) != 0)
             continue; /* as above: only a few runs that may succeed, to keep the test quick */
-        int rc = run_quiet(runs[i].cmd, argc, runs[i].argv);
+        int rc = fc_run_quiet(runs[i].cmd, argc, runs[i].argv);
         if (rc == 0 && must_refuse) {
             fprintf(stderr, "property broken: '%s' exited 0 on a file check rejects (%s):\n%s\n",
                     runs[i].argv[0], runs[i].one_bus ? "PF-SWG-1" : "all buses", results);
@@ -456,9 +404,9 @@ static void the_seeds_should_pass_check_and_print(void **state)
     char results[512];
     path_in(results, sizeof results, "seed.csv");
     char *check_argv[] = {"check", results, NULL};
-    assert_int_equal(run_quiet(cmd_check, 2, check_argv), 0);
+    assert_int_equal(fc_run_quiet(cmd_check, 2, check_argv), 0);
     path_in(results, sizeof results, "seed.json");
-    assert_int_equal(run_quiet(cmd_check, 2, check_argv), 0);
+    assert_int_equal(fc_run_quiet(cmd_check, 2, check_argv), 0);
     write_file("r.csv", seed_csv, sizeof seed_csv - 1);
     one_case("r.csv", "seed.csv", &t);
     finish();
