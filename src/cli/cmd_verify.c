@@ -5,11 +5,12 @@
  *   0 current     the payload is exactly what was printed for the current revision
  *   1 superseded  printed for a revision that has since been replaced (the current revision
  *                 and what changed are shown)
- *   2 unknown     no content hash, a hash the manifest does not hold, or a payload that differs
- *                 from what was printed with that hash (altered). Usage errors also exit 2, with
- *                 a message on stderr and nothing on stdout; an answer always prints a line
- *                 starting "current", "superseded" or "unknown" on stdout.
+ *   2             usage: a bad option, or a payload on stdin that is not one line of text (a NUL
+ *                 byte, a second line, too long), with a message on stderr and nothing on stdout
  *   3             the manifest cannot be read or is not a valid manifest
+ *   4 unknown     no content hash, a hash the manifest does not hold, or a payload that differs
+ *                 from what was printed with that hash (altered)
+ * An answer always prints a line starting "current", "superseded" or "unknown" on stdout.
  * The manifest is read without taking its lock: it is replaced atomically, so a reader sees
  * the old or the new file whole, and verify works from a read-only copy. */
 #include <getopt.h>
@@ -28,9 +29,9 @@ static const char verify_usage[] =
     "usage: tagwright verify --manifest M.json PAYLOAD\n"
     "  PAYLOAD  the text read from the label's QR code; '-' reads one line from stdin\n"
     "Prints current, superseded (with the current revision and what changed) or unknown.\n"
-    "Exit 0 current, 1 superseded, 2 unknown (usage errors also 2), 3 manifest unreadable.\n";
+    "Exit 0 current, 1 superseded, 2 usage, 3 manifest unreadable, 4 unknown.\n";
 
-enum { VERIFY_CURRENT = 0, VERIFY_SUPERSEDED = 1, VERIFY_UNKNOWN = 2, VERIFY_NO_MANIFEST = 3 };
+enum { VERIFY_CURRENT = 0, VERIFY_SUPERSEDED = 1, VERIFY_NO_MANIFEST = 3, VERIFY_UNKNOWN = 4 };
 
 /* Longest payload read from stdin, bytes (a QR code holds at most 2953). */
 #define VERIFY_MAX_PAYLOAD 8192
@@ -43,25 +44,36 @@ static void chomp(char *s)
         s[--n] = '\0';
 }
 
-/* The payload; NULL when out of memory or (*too_long set) when the line on stdin does not fit,
- * which is refused rather than cut short. */
-static char *read_payload(const char *arg, int *too_long)
+/* The payload; NULL when out of memory or when the text on stdin is not one line of a QR
+ * code (*problem says why: too long, a NUL byte, more than one line), which is refused rather
+ * than cut short or read in part. */
+static char *read_payload(const char *arg, const char **problem)
 {
-    *too_long = 0;
+    *problem = NULL;
     if (strcmp(arg, "-"))
         return tw_strdup(arg);
-    char *buf = malloc(VERIFY_MAX_PAYLOAD + 1);
-    if (buf && !fgets(buf, VERIFY_MAX_PAYLOAD + 1, stdin))
-        buf[0] = '\0';
-    size_t n = buf ? strlen(buf) : 0;
-    if (n == VERIFY_MAX_PAYLOAD && buf[n - 1] != '\n') {
-        int c = getc(stdin);
-        if (c != EOF && c != '\n') {
-            *too_long = 1;
-            free(buf);
-            return NULL;
-        }
+    char *buf = malloc(VERIFY_MAX_PAYLOAD + 2);
+    if (!buf)
+        return NULL;
+    size_t n = fread(buf, 1, VERIFY_MAX_PAYLOAD + 2, stdin);
+    buf[n < VERIFY_MAX_PAYLOAD + 2 ? n : VERIFY_MAX_PAYLOAD + 1] = '\0';
+    size_t end = n;
+    if (end && buf[end - 1] == '\n')
+        end--;
+    if (end && buf[end - 1] == '\r')
+        end--;
+    if (end > VERIFY_MAX_PAYLOAD)
+        *problem = "is longer than 8192 bytes; expected the text of one QR code (at most 2953 "
+                   "bytes)";
+    else if (memchr(buf, '\0', end))
+        *problem = "holds a NUL byte; expected the text of one QR code";
+    else if (memchr(buf, '\n', end) || memchr(buf, '\r', end))
+        *problem = "holds more than one line; expected the text of one QR code on one line";
+    if (*problem) {
+        free(buf);
+        return NULL;
     }
+    buf[end] = '\0';
     return buf;
 }
 
@@ -200,12 +212,10 @@ int cmd_verify(int argc, char **argv)
     if (optind != argc - 1)
         return tw_usage_error("verify", "expected one payload (the text read from the QR code, "
                               "or - for stdin)");
-    int too_long;
-    char *payload = read_payload(argv[optind], &too_long);
-    if (too_long)
-        return tw_usage_error("verify", "the payload on stdin is longer than %d bytes; expected "
-                              "the text of one QR code (at most 2953 bytes)",
-                              VERIFY_MAX_PAYLOAD);
+    const char *problem;
+    char *payload = read_payload(argv[optind], &problem);
+    if (problem)
+        return tw_usage_error("verify", "the payload on stdin %s", problem);
     if (!payload) {
         fprintf(stderr, "tagwright verify: out of memory\n");
         return VERIFY_NO_MANIFEST;

@@ -129,12 +129,12 @@ p = sys.argv[1]; i = p.rindex("/") + 1
 print(p[:i] + ("1" if p[i] != "1" else "2") + p[i + 1:])' "$p2")
 [ "$tampered" != "$p2" ] && ok "a tampered payload differs" || fail "tampering did not change the payload"
 run verify --manifest "$M" "$tampered"
-expect_rc 2 "verify: tampered hash is unknown"
+expect_rc 4 "verify: tampered hash is unknown"
 contains "$OUT" "unknown" "verify says unknown"
 run verify --manifest "$M" "${p2/\/2\//\/3\/}"
-expect_rc 2 "verify: right hash but altered payload is unknown"
+expect_rc 4 "verify: right hash but altered payload is unknown"
 run verify --manifest "$M" "https://records.invalid/nothing"
-expect_rc 2 "verify: payload without a hash is unknown"
+expect_rc 4 "verify: payload without a hash is unknown"
 if has_tool zbarimg && has_tool pdftoppm; then
     pdftoppm -f 1 -l 1 -r 300 -png "$TW_TMP/posted.pdf" "$TW_TMP/scan" >/dev/null 2>&1
     set +e
