@@ -16,6 +16,7 @@
 #include <cjson/cJSON.h>
 
 #include "read/tw_results.h"
+#include "base/tw_text.h"
 #include "base/tw_util.h"
 
 /* Default PPE levels: names of our own; arc ratings at the NFPA 70E Table 130.7(C)(15)(c)
@@ -170,6 +171,16 @@ static void read_text(loader *L, const cJSON *v, const char *path, const char *f
     }
     if (n > TW_MAX_SITE_TEXT) {
         finding(L, TW_ERROR, path, field, "longer than %d bytes", TW_MAX_SITE_TEXT);
+        return;
+    }
+    if (n > 0 && strspn(v->valuestring, " \t\r\n") == n) {
+        finding(L, TW_ERROR, path, field, "expected text, found only blanks");
+        return;
+    }
+    /* Site texts are printed as they are, each on its own line of a label or permit. */
+    if (!tw_text_ok(v->valuestring)) {
+        finding(L, TW_ERROR, path, field, "expected printable UTF-8 text on one line, found a "
+                "line break, a control character or bytes that are not UTF-8");
         return;
     }
     char *copy = tw_strdup(v->valuestring);

@@ -340,8 +340,10 @@ static void derive_identity(deriver *D)
     copy_text(D, TW_F_SCENARIO, TW_L_SCENARIO, TW_MAX_TEXT_BYTES, 0);
 }
 
-/* Study date as YYYY-MM-DD, and the review due date NFPA 70E 130.5(G) implies. */
-static void derive_dates(deriver *D)
+/* Study date as YYYY-MM-DD, and the review due date NFPA 70E 130.5(G) implies. A study dated
+ * after the label is printed is a slip (9999-12-31 would give a review date that cannot be
+ * written), so it is refused; validation refuses a date after today the same way. */
+static void derive_dates(deriver *D, const char *print_date)
 {
     const char *text = tw_row_has(D->row, TW_F_STUDY_DATE) ? D->row->text[TW_F_STUDY_DATE] : NULL;
     tw_date date;
@@ -351,6 +353,13 @@ static void derive_dates(deriver *D)
     }
     if (tw_date_parse(text, &date) != 0) {
         report(D, TW_ERROR, TW_F_STUDY_DATE, "not a calendar date; expected YYYY-MM-DD");
+        return;
+    }
+    tw_date printed;
+    if (print_date && tw_date_parse(print_date, &printed) == 0 &&
+        tw_date_cmp(date, printed) > 0) {
+        report(D, TW_ERROR, TW_F_STUDY_DATE, "%s is after the print date %s; expected the date "
+               "of a study already made", text, print_date);
         return;
     }
     char buf[11];
@@ -677,7 +686,7 @@ int tw_label_derive(const tw_bus *bus, const tw_site *site, const char *print_da
     derive_boundary(&D);
     derive_ppe_and_signal(&D, rating);
     derive_service(&D, bus, print_date);
-    derive_dates(&D);
+    derive_dates(&D, print_date);
     if (tw_label_rehash(out) != 0)
         report(&D, TW_ERROR, TW_F_COUNT, "could not compute the content hash");
     out->draft = D.errors ? 1 : 0;

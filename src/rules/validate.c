@@ -28,6 +28,7 @@ typedef struct {
     const tw_bus_set *buses;
     const tw_site *site;
     tw_diags *d;
+    tw_date today;
 } check_ctx;
 
 typedef struct {
@@ -164,6 +165,13 @@ static void check_study_date(const check_ctx *ctx, tw_row *r)
     if (s && tw_date_parse(s, &date) != 0)
         tw_row_diag(ctx->d, r, TW_ERROR, TW_F_STUDY_DATE, NULL,
                     "expected an ISO 8601 date YYYY-MM-DD, got '%s'", s);
+    else if (s && tw_date_cmp(date, ctx->today) > 0) {
+        char today[11];
+        tw_date_format(ctx->today, today);
+        tw_row_diag(ctx->d, r, TW_ERROR, TW_F_STUDY_DATE, NULL,
+                    "%s is after today (%s); expected the date of a study already made", s,
+                    today);
+    }
 }
 
 /* The label prints the shock approach boundaries (NFPA 70E Table 130.4(E)(a)) and the glove
@@ -477,7 +485,7 @@ static const tw_check checks[] = {
 
 size_t tw_validate(tw_results *r, const tw_bus_set *buses, const tw_site *site, tw_diags *d)
 {
-    check_ctx ctx = {r, buses, site, d};
+    check_ctx ctx = {r, buses, site, d, tw_date_today()};
     size_t before = d->errors, n = sizeof checks / sizeof checks[0];
     /* Row by row, so the findings about one row come out together and in input order. */
     for (size_t i = 0; i < r->count; i++)

@@ -144,20 +144,20 @@ run labels results.csv --out out.pdf --manifest results.csv
 expect_rc 1 "--manifest naming the results CSV is refused (not a manifest)"
 cmp -s results.csv "$BI/good.csv" && ok "the results file is still unchanged" || fail "the results file was changed"
 [ ! -e out.pdf ] && ok "no PDF written when the manifest is refused" || fail "out.pdf written"
-run labels "$TW_DATA/core/small.csv" --out posted.pdf --date 2025-02-28
+run labels "$TW_DATA/core/small.csv" --out posted.pdf --date 2026-10-01
 cp posted.manifest.json posted.keep
 run permit "$TW_DATA/core/small.csv" --job "$TW_DATA/permit/job.json" \
-    --manifest posted.manifest.json --out posted.manifest.json --date 2025-02-28
+    --manifest posted.manifest.json --out posted.manifest.json --date 2026-10-01
 expect_rc 3 "permit --out naming its --manifest (no --site) is refused"
 cmp -s posted.manifest.json posted.keep && ok "the manifest is unchanged" ||
     fail "the manifest was overwritten by the permit"
 run reprint "$TW_DATA/core/small.csv" --bus E2E-MCC-1 --clearing-time 0.1 --reason test \
-    --manifest posted.manifest.json --out posted.manifest.json --date 2025-03-01
+    --manifest posted.manifest.json --out posted.manifest.json --date 2026-10-02
 expect_rc 3 "reprint --out naming its --manifest (no --site) is refused"
 cmp -s posted.manifest.json posted.keep && ok "the manifest is unchanged by reprint" ||
     fail "the manifest was overwritten by the reprinted PDF"
 run diff "$TW_DATA/core/small.csv" "$TW_DATA/core/small.csv" \
-    --manifest posted.manifest.json --out posted.manifest.json --date 2025-03-01
+    --manifest posted.manifest.json --out posted.manifest.json --date 2026-10-02
 expect_rc 3 "diff --out naming its --manifest (no --site) is refused"
 cmp -s posted.manifest.json posted.keep && ok "the manifest is unchanged by diff" ||
     fail "the manifest was overwritten by diff"
