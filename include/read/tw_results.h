@@ -175,7 +175,7 @@ int tw_results_reserve(tw_results *r, size_t n);
 int tw_row_init(tw_results *r, tw_row *row);
 
 /* Store a text value for column c: trimmed (empty means absent), then checked for length,
- * valid UTF-8 and control characters (line breaks only in description and location). A bad
+ * valid UTF-8 and control characters (a line break is one: every value is one line). A bad
  * value gets an error finding naming c->name and marks the field invalid. */
 void tw_row_set_text(tw_row *r, const tw_column *c, const char *s, size_t len, tw_diags *d);
 

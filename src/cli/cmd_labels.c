@@ -120,7 +120,8 @@ static int parse_args(int argc, char **argv, labels_args *a)
 }
 
 /* The buses to print: all, or those named with --bus (an unknown ID is an error finding). */
-static const tw_bus **select_buses(tw_study *st, const labels_args *a, size_t *n)
+static const tw_bus **select_buses(tw_study *st, const labels_args *a, size_t *n,
+                                   size_t *unknown)
 {
     size_t want = a->bus_count ? a->bus_count : st->buses.count;
     const tw_bus **sel = calloc(want ? want : 1, sizeof *sel);
@@ -130,9 +131,12 @@ static const tw_bus **select_buses(tw_study *st, const labels_args *a, size_t *n
     for (size_t i = 0; i < want; i++) {
         const tw_bus *b = a->bus_count ? tw_bus_set_find(&st->buses, a->buses[i])
                                        : &st->buses.buses[i];
-        if (b)
+        int again = 0; /* --bus X given twice prints one label */
+        for (size_t k = 0; a->bus_count && b && k < *n; k++)
+            again |= sel[k] == b;
+        if (b && !again)
             sel[(*n)++] = b;
-        else
+        else if (!b && ++*unknown)
             fprintf(stderr, "%s: error: %s: equipment_id: --bus names equipment that is not in "
                     "the results\n", a->results, a->buses[i]);
     }
@@ -184,8 +188,8 @@ static int run(tw_study *st, const labels_args *a)
         fprintf(stderr, "tagwright labels: %s\n", err);
         return TW_EXIT_IO;
     }
-    size_t n = 0;
-    const tw_bus **sel = select_buses(st, a, &n);
+    size_t n = 0, unknown_bus = 0;
+    const tw_bus **sel = select_buses(st, a, &n, &unknown_bus);
     tw_label *labels = calloc(n ? n : 1, sizeof *labels);
     tw_layout layout = {0};
     int rc = TW_EXIT_IO;
@@ -197,7 +201,7 @@ static int run(tw_study *st, const labels_args *a)
     int layout_bad = tw_batch_layout(a->layout, &st->site, &layout, &st->diags) != 0;
     tw_diags_sort(&st->diags);
     print_findings(&st->diags, sel, n, a->bus_count == 0);
-    if (refused || layout_bad || (a->bus_count && n < a->bus_count)) {
+    if (refused || layout_bad || unknown_bus) {
         if (refused)
             fprintf(stderr, "tagwright labels: %zu bus%s with errors; no labels written (fix the "
                     "data, or use --draft for watermarked drafts not for posting)\n",

@@ -496,5 +496,10 @@ size_t tw_validate(tw_results *r, const tw_bus_set *buses, const tw_site *site, 
         for (size_t c = 0; c < n; c++)
             if (checks[c].bus)
                 checks[c].bus(&ctx, &buses->buses[i]);
+    if (buses && buses->count == 0) { /* a header alone, {"buses": []}, CR-only line ends */
+        tw_source src = {r->file, 0, NULL};
+        tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "no buses; expected at least one row with an "
+                    "equipment ID (a file whose lines end in CR alone reads as a header only)");
+    }
     return d->errors - before;
 }
