@@ -79,6 +79,13 @@ extern const size_t tw_column_count;
 /* The column for a name (exact match), or NULL. */
 const tw_column *tw_column_find(const char *name);
 
+/* The known column an unknown name resembles, or NULL: the same name once case, blanks and
+ * punctuation are set aside ("incident_energy_cal/cm2"), a small edit distance (at most 2 for
+ * names of 8 characters or more, 1 for shorter ones: "incident_enrgy_cal_cm2"), or the same
+ * words with another unit ("nominal_voltage_kv"). Readers make such a column an error: its
+ * value would be dropped while the label shows another (docs/input-format.md). */
+const tw_column *tw_column_resembling(const char *name);
+
 /* The canonical name of a field, e.g. "arc_flash_boundary_mm". */
 const char *tw_field_name(tw_field f);
 

@@ -108,8 +108,14 @@ static void warn_unknown_key(json_reader *jr, const char *obj_path, const char *
     char *ex = tw_excerpt(key, strlen(key));
     char *path = tw_asprintf("%s.%s", obj_path, ex ? ex : "?");
     tw_source src = {jr->out->file, 0, path ? path : obj_path};
-    tw_diag_add(jr->d, TW_WARNING, &src, NULL, ex ? ex : "?",
-                "unknown key is ignored (reported once); expected a tagwright field name");
+    const tw_column *like = tw_column_resembling(key);
+    if (like)
+        tw_diag_add(jr->d, TW_ERROR, &src, NULL, ex ? ex : "?",
+                    "unknown key resembles %s (%s); expected the exact name, or another name "
+                    "if it is not that value", like->name, tw_field_display(like->field));
+    else
+        tw_diag_add(jr->d, TW_WARNING, &src, NULL, ex ? ex : "?",
+                    "unknown key is ignored (reported once); expected a tagwright field name");
     free(path);
     free(ex);
 }
