@@ -265,34 +265,90 @@ static int make_payload(run_state *R, draft *dr)
     return dr->payload ? 0 : -1;
 }
 
+/* The line for a written permit, and the note when no PPE level is adequate. */
+static int report_written(const draft *dr, int pages)
+{
+    const char *eq = dr->label.value[TW_L_EQUIPMENT_ID];
+    printf("%s: %d page%s, %s, label revision %d\n", dr->path, pages, pages == 1 ? "" : "s",
+           eq, dr->revision);
+    if (tw_permit_no_ppe_adequate(&dr->label))
+        fprintf(stderr, "tagwright permit: %s: no PPE level at this site is adequate for %s "
+                "(minimum arc rating %s); the draft says energized work should not be "
+                "performed\n", dr->path, eq, dr->label.value[TW_L_MIN_ARC_RATING]
+                ? dr->label.value[TW_L_MIN_ARC_RATING] : "unknown");
+    return TW_EXIT_OK;
+}
+
+/* Remove the temporary files of a batch that will not be published. */
+static void drop_tmps(char **tmps, size_t n)
+{
+    for (size_t i = 0; i < n; i++)
+        if (tmps[i]) {
+            unlink(tmps[i]);
+            tw_atomic_forget(tmps[i]);
+            free(tmps[i]);
+        }
+    free(tmps);
+}
+
+/* Every permit is written to its temporary file first and published only when all are
+ * written: a batch is all or nothing (a full disk after the first permit leaves none). */
 static int write_all(run_state *R)
 {
+    size_t n = R->jobs.count;
+    char **tmps = calloc(n ? n : 1, sizeof *tmps);
+    int *pages = calloc(n ? n : 1, sizeof *pages);
+    char err[1024] = "";
     int rc = TW_EXIT_OK;
-    for (size_t i = 0; i < R->jobs.count; i++) {
+    if (!tmps || !pages) {
+        fprintf(stderr, "tagwright permit: out of memory\n");
+        free(pages);
+        free(tmps);
+        return TW_EXIT_IO;
+    }
+    for (size_t i = 0; i < n && rc == TW_EXIT_OK; i++) {
         draft *dr = &R->drafts[i];
-        char err[1024] = "";
         if (make_payload(R, dr) != 0) {
             fprintf(stderr, "tagwright permit: out of memory\n");
-            return TW_EXIT_IO;
+            rc = TW_EXIT_IO;
+            break;
         }
         tw_permit p = {dr->job, &dr->label, dr->bus, &R->st->site, dr->payload, dr->revision,
                        R->a->date, R->a->paper};
-        int pages = tw_permit_write(&p, dr->path, err, sizeof err);
-        if (pages < 0) {
-            fprintf(stderr, "tagwright permit: %s: %s\n", dr->path, err);
-            return TW_EXIT_IO;
-        }
-        const char *eq = dr->label.value[TW_L_EQUIPMENT_ID];
-        printf("%s: %d page%s, %s, label revision %d\n", dr->path, pages, pages == 1 ? "" : "s",
-               eq, dr->revision);
-        if (tw_permit_no_ppe_adequate(&dr->label)) {
-            fprintf(stderr, "tagwright permit: %s: no PPE level at this site is adequate for %s "
-                    "(minimum arc rating %s); the draft says energized work should not be "
-                    "performed\n", dr->path, eq, dr->label.value[TW_L_MIN_ARC_RATING]
-                    ? dr->label.value[TW_L_MIN_ARC_RATING] : "unknown");
+        if (!(tmps[i] = tw_atomic_tmp_path(dr->path, err, sizeof err)) ||
+            (pages[i] = tw_permit_write_tmp(&p, tmps[i], dr->path, err, sizeof err)) < 0) {
+            fprintf(stderr, "tagwright permit: %s%s\n", err,
+                    n > 1 ? "; no permit of the batch written" : "");
             rc = TW_EXIT_IO;
         }
     }
+    if (rc != TW_EXIT_OK) {
+        drop_tmps(tmps, n);
+        free(pages);
+        return rc;
+    }
+    tw_atomic_hold_signals();
+    for (size_t i = 0; i < n; i++) {
+        if (rc == TW_EXIT_OK && tw_atomic_publish(tmps[i], R->drafts[i].path, err,
+                                                  sizeof err) != 0) {
+            fprintf(stderr, "tagwright permit: %s\n", err);
+            rc = TW_EXIT_IO;
+        } else if (rc != TW_EXIT_OK) {
+            unlink(tmps[i]);
+            tw_atomic_forget(tmps[i]);
+        }
+        free(tmps[i]);
+        tmps[i] = NULL;
+    }
+    tw_atomic_release_signals();
+    free(tmps);
+    for (size_t i = 0; rc == TW_EXIT_OK && i < n; i++)
+        rc = report_written(&R->drafts[i], pages[i]);
+    if (rc == TW_EXIT_OK)
+        for (size_t i = 0; i < n; i++)
+            if (tw_permit_no_ppe_adequate(&R->drafts[i].label))
+                rc = TW_EXIT_IO;
+    free(pages);
     return rc;
 }
 

@@ -42,16 +42,24 @@ typedef struct {
     const char *results, *site, *out, *manifest, *layout, *bus, *reason;
     double clearing_time;       /* 0: not given */
     double incident_energy;     /* 0: not given */
+    const char *given;          /* the option and value as given, for messages */
+    char given_buf[96];
     char date[11];
 } reprint_args;
 
-/* A number option above 0; -1 (usage error printed) otherwise. */
-static int positive_option(const char *name, const char *value, double *out)
+/* A number option of at least min (the value below which the label would print 0: half its
+ * last printed digit, as for the results file, docs/checks.md); -1 (usage error printed)
+ * otherwise. Keeps the option as given for the messages about the values it makes. */
+static int positive_option(reprint_args *a, const char *name, const char *value, double min,
+                           double *out)
 {
-    if (tw_parse_double(value, out) != 0 || !(*out > 0) || !isfinite(*out)) {
-        tw_usage_error("reprint", "--%s: expected a number above 0, got '%s'", name, value);
+    if (tw_parse_double(value, out) != 0 || !(*out >= min) || !isfinite(*out)) {
+        tw_usage_error("reprint", "--%s: expected a number of at least %g (smaller prints as 0 "
+                       "on the label), got '%s'", name, min, value);
         return -1;
     }
+    snprintf(a->given_buf, sizeof a->given_buf, "--%s %s", name, value);
+    a->given = a->given_buf;
     return 0;
 }
 
@@ -74,11 +82,11 @@ static int parse_args(int argc, char **argv, reprint_args *a)
         switch (c) {
         case 'b': a->bus = optarg; break;
         case 'c':
-            if (positive_option("clearing-time", optarg, &a->clearing_time) != 0)
+            if (positive_option(a, "clearing-time", optarg, 0.0005, &a->clearing_time) != 0)
                 return TW_EXIT_USAGE;
             break;
         case 'e':
-            if (positive_option("incident-energy", optarg, &a->incident_energy) != 0)
+            if (positive_option(a, "incident-energy", optarg, 0.05, &a->incident_energy) != 0)
                 return TW_EXIT_USAGE;
             break;
         case 's': a->site = optarg; break;
@@ -377,9 +385,15 @@ static int make_label(tw_study *st, const reprint_args *a, const tw_bus *b, tw_l
     tw_diags_init(&revised);
     const tw_bus *one = &rb->bus;
     size_t refused = tw_batch_derive(&one, 1, &st->site, a->date, 0, new_l, &revised);
-    for (size_t i = 0; refused && i < revised.count; i++)
-        if (revised.items[i].severity == TW_ERROR)
-            tw_diag_print(&revised.items[i], stderr);
+    /* These values come from the option, not from the row of the results file. */
+    for (size_t i = 0; refused && i < revised.count; i++) {
+        const tw_diag *g = &revised.items[i];
+        if (g->severity == TW_ERROR)
+            fprintf(stderr, "tagwright reprint: %s: error: %s: %s%s%s (the revised label)\n",
+                    a->given ? a->given : "the option", b->equipment_id,
+                    g->field ? g->field : "", g->field ? ": " : "",
+                    g->message ? g->message : "(out of memory)");
+    }
     tw_diags_free(&revised);
     if (refused)
         return TW_EXIT_DATA;

@@ -2,6 +2,7 @@
 #include "write/tw_pdf_doc.h"
 
 #include <math.h>
+#include <errno.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -188,9 +189,16 @@ int tw_pdf_doc_write(tw_pdf_doc *d, const char *path, const char *target, char *
         snprintf(err, errlen, "%s: not written: %s", target, why);
         return -1;
     }
+    errno = 0;
     if (HPDF_SaveToFile(d->pdf, path) != HPDF_OK || d->error) {
+        int e = errno;
         tw_pdf_doc_check(d, why, sizeof why);
-        snprintf(err, errlen, "%s: cannot write: %s", target, d->error ? why : "PDF library error");
+        if (e == ENOSPC || e == EDQUOT || e == EFBIG) /* libharu says only "file I/O" */
+            snprintf(err, errlen, "%s while writing %s", e == ENOSPC ? "disk full"
+                     : e == EDQUOT ? "disk quota exceeded" : "file size limit reached", target);
+        else
+            snprintf(err, errlen, "%s: cannot write: %s", target,
+                     d->error ? why : "PDF library error");
         return -1;
     }
     d->saved = 1;

@@ -454,9 +454,11 @@ static void work_volumes(const tw_label *labels, size_t n, const tw_print_opts *
         size_t v = atomic_fetch_add(&s->prog->next, 1);
         if (v >= p->nvols || lower_failed(s, v))
             break;
-        tw_label_doc *doc = tw_label_doc_new(o->layout, o->site, o->print_date, err, sizeof err);
+        int status;
+        tw_label_doc *doc = tw_label_doc_new_status(o->layout, o->site, o->print_date, &status,
+                                                    err, sizeof err);
         if (!doc) {
-            volume_failed(s, v, TW_EXIT_IO, err);
+            volume_failed(s, v, status, err);
             break;
         }
         size_t first = v * p->per_volume;
