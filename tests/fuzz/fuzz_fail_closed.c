@@ -4,8 +4,8 @@
  * process, as tests/unit/test_fail_closed.c does for thousands of generated files:
  *   - every bus, in memory: a bus whose label tw_batch_derive() accepts has no error from
  *     check naming it or naming no bus; with --draft, a bus that check blames is a draft;
- *   - on one input in RUN_EVERY, when check exits non-zero: `labels` and `labels --bus FIRST` (when check blames the
- *     first bus) exit non-zero, and the directory holds nothing but the input afterwards.
+ *   - on one input in RUN_EVERY, when check exits non-zero: `labels`, and `labels --bus
+ *     FIRST` when check blames the first bus, exit non-zero and leave nothing but the input.
  * A broken property is a crash (abort), with the input kept by libFuzzer. */
 #include <dirent.h>
 #include <stdint.h>
