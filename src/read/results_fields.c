@@ -145,8 +145,8 @@ const tw_column *tw_column_resembling(const char *name)
 {
     char n[128], k[128], stem[128];
     normalize_name(name, n, sizeof n);
-    if (!n[0])
-        return NULL;
+    if (!n[0] || tw_column_find(name))
+        return NULL; /* a known name given twice is reported as such */
     for (size_t i = 0; i < tw_column_count; i++) {
         const tw_column *c = &tw_columns[i];
         normalize_name(c->name, k, sizeof k);

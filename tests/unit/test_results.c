@@ -59,7 +59,7 @@ static void csv_with_bom_and_crlf_should_read_every_row(void **state)
     done(&r, &d);
 }
 
-static void quoted_commas_and_newlines_should_stay_in_the_description(void **state)
+static void a_line_break_in_a_quoted_description_should_be_an_error(void **state)
 {
     (void)state;
     tw_results r;
@@ -68,11 +68,10 @@ static void quoted_commas_and_newlines_should_stay_in_the_description(void **sta
                       "MCC-3,\"Motor control, north \"\"wing\"\"\r\nSection 2\","
                       "\"Room 4, level 1\"\n";
     assert_int_equal(read_csv(csv, &r, &d), 0);
-    assert_int_equal(d.errors, 0);
+    assert_int_equal(d.errors, 1); /* every value is one line (docs/input-format.md) */
+    assert_non_null(find_diag(&d, "expected a single line, found a line break"));
     assert_int_equal(r.count, 1);
-    /* the CRLF inside the quoted cell becomes one LF */
-    assert_string_equal(r.rows[0].text[TW_F_DESCRIPTION],
-                        "Motor control, north \"wing\"\nSection 2");
+    assert_null(r.rows[0].text[TW_F_DESCRIPTION]);
     assert_string_equal(r.rows[0].text[TW_F_LOCATION], "Room 4, level 1");
     done(&r, &d);
 }
@@ -95,7 +94,7 @@ static void line_numbers_should_count_lines_after_a_multiline_cell_and_blank_lin
     assert_int_equal(read_csv(csv, &r, &d), 0);
     assert_int_equal(r.count, 3);
     assert_int_equal(r.rows[0].line, 3);
-    assert_string_equal(r.rows[0].text[TW_F_DESCRIPTION], "three\nline\ncell");
+    assert_null(r.rows[0].text[TW_F_DESCRIPTION]); /* a line break: an error on line 3 */
     assert_int_equal(r.rows[1].line, 8);
     assert_int_equal(r.rows[2].line, 10);
     const tw_diag *g = find_diag(&d, "expected a decimal number, got 'abc'");
@@ -752,7 +751,7 @@ int main(void)
         cmocka_unit_test(csv_with_bom_and_crlf_should_read_every_row),
         cmocka_unit_test(csv_read_in_pieces_should_read_as_it_does_whole),
         cmocka_unit_test(repeated_values_should_be_stored_once),
-        cmocka_unit_test(quoted_commas_and_newlines_should_stay_in_the_description),
+        cmocka_unit_test(a_line_break_in_a_quoted_description_should_be_an_error),
         cmocka_unit_test(line_numbers_should_count_lines_after_a_multiline_cell_and_blank_lines),
         cmocka_unit_test(unknown_column_should_be_warned_once_at_line_1),
         cmocka_unit_test(inches_feet_and_joules_should_convert_by_hand_arithmetic),
