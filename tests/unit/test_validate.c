@@ -273,8 +273,9 @@ static void a_row_without_an_id_should_be_reported_and_left_out_of_the_buses(voi
     (void)state;
     fixture f;
     check_csv(&f, HEAD ",max,2025-06-30,480,8,457.2,1219.2,\n");
-    assert_int_equal(f.errors, 1);
+    assert_int_equal(f.errors, 2); /* the missing ID, and a file without buses */
     assert_string_equal(f.d.items[0].field, "equipment_id");
+    assert_non_null(strstr(f.d.items[1].message, "no buses"));
     assert_int_equal(f.s.count, 0);
     fixture_free(&f);
 }
