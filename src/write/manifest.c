@@ -12,7 +12,7 @@
 #include "base/tw_atomic.h"
 #include "base/tw_util.h"
 
-#define MANIFEST_FORMAT "tagwright-manifest"
+#define MANIFEST_FORMAT TW_LABEL_RECORD_FORMAT
 #define MANIFEST_VERSION 1
 
 /* A copy of s (NULL gives NULL) among the manifest's strings. An entry's strings are never
@@ -239,6 +239,11 @@ int tw_manifest_open(const char *path, tw_manifest *m, tw_diags *d)
     }
     free(lock_path);
     char err[512] = "";
+    if (tw_output_replaceable(path, err, sizeof err) != 0) { /* reading a FIFO would block */
+        tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "%s", err);
+        close(fd);
+        return -1;
+    }
     size_t len = 0;
     char *data = NULL;
     if (access(path, F_OK) == 0 && !(data = tw_read_file(path, &len, err, sizeof err))) {
