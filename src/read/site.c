@@ -17,6 +17,7 @@
 
 #include "read/tw_results.h"
 #include "base/tw_util.h"
+#include "read/tw_json.h"
 
 /* Default PPE levels: names of our own; arc ratings at the NFPA 70E Table 130.7(C)(15)(c)
  * category minimums (4, 8, 25, 40 cal/cm2) so that a site without settings still gets a
@@ -328,33 +329,24 @@ static void read_level(loader *L, const cJSON *v, size_t i, tw_ppe_level *out)
                 "expected an object with \"name\" and \"arc_rating_cal_cm2\"");
         return;
     }
-    int seen_name = 0, seen_rating = 0;
-    const cJSON *k;
+    const cJSON *k; /* each key once: tw_json_parse() refuses a key given twice */
     cJSON_ArrayForEach(k, v) {
         char *path = tw_asprintf("%s.%s", base, k->string ? k->string : "");
         if (!path) {
             oom(L, base, "ppe_levels");
             return;
         }
-        if (k->string && strcmp(k->string, "name") == 0) {
-            if (seen_name++)
-                finding(L, TW_ERROR, path, "name", "key given twice");
-            else
-                read_text(L, k, path, "name", 0, &out->name);
-        } else if (k->string && strcmp(k->string, "arc_rating_cal_cm2") == 0) {
-            if (seen_rating++)
-                finding(L, TW_ERROR, path, "arc_rating_cal_cm2", "key given twice");
-            else
-                read_positive(L, k, path, "arc_rating_cal_cm2", TW_MAX_CAL,
-                              &out->arc_rating_cal_cm2);
-        } else {
+        if (k->string && strcmp(k->string, "name") == 0)
+            read_text(L, k, path, "name", 0, &out->name);
+        else if (k->string && strcmp(k->string, "arc_rating_cal_cm2") == 0)
+            read_positive(L, k, path, "arc_rating_cal_cm2", TW_MAX_CAL, &out->arc_rating_cal_cm2);
+        else
             finding(L, TW_WARNING, path, k->string, "unknown key, ignored");
-        }
         free(path);
     }
-    if (!seen_name)
+    if (!cJSON_GetObjectItemCaseSensitive(v, "name"))
         finding(L, TW_ERROR, base, "name", "missing; expected a non-empty string");
-    if (!seen_rating)
+    if (!cJSON_GetObjectItemCaseSensitive(v, "arc_rating_cal_cm2"))
         finding(L, TW_ERROR, base, "arc_rating_cal_cm2", "missing; expected a number above 0");
 }
 
@@ -422,33 +414,18 @@ static const struct {
     {"layout", key_layout},
 };
 
-/* 1-based line of a byte offset, for parse errors. */
-static long line_of(const char *data, size_t len, size_t offset)
-{
-    long line = 1;
-    for (size_t i = 0; i < offset && i < len; i++)
-        if (data[i] == '\n')
-            line++;
-    return line;
-}
-
 static void apply(loader *L, const cJSON *root, tw_site *s)
 {
-    unsigned seen = 0;
-    const cJSON *item;
+    const cJSON *item; /* each key once: tw_json_parse() refuses a key given twice */
     cJSON_ArrayForEach(item, root) {
         const char *key = item->string ? item->string : "";
         size_t i = 0;
         while (i < COUNT(settings_table) && strcmp(settings_table[i].key, key) != 0)
             i++;
-        if (i == COUNT(settings_table)) {
+        if (i == COUNT(settings_table))
             finding(L, TW_WARNING, key, key, "unknown setting, ignored (see docs/site-settings.md)");
-        } else if (seen & (1u << i)) {
-            finding(L, TW_ERROR, key, key, "setting given twice");
-        } else {
-            seen |= 1u << i;
+        else
             settings_table[i].read(L, item, s);
-        }
     }
 }
 
@@ -462,44 +439,12 @@ int tw_site_load_mem(const char *name, const char *data, size_t len, tw_site *s,
         finding(&L, TW_ERROR, NULL, NULL, "out of memory");
         return -1;
     }
-    if (data && tw_json_value_bound(data, len) > TW_MAX_JSON_VALUES) {
-        finding(&L, TW_ERROR, NULL, NULL, "more than %d JSON values; expected at most that",
-                TW_MAX_JSON_VALUES);
+    const tw_json_spec spec = {"an object of site settings", TW_JSON_OBJECT, NULL};
+    cJSON *root = tw_json_parse(L.file, data, len, &spec, d);
+    if (!root)
         return -1;
-    }
-    size_t nul = data ? tw_json_find_nul(data, len) : 0;
-    if (data && nul < len) {
-        tw_source src = {L.file, line_of(data, len, nul), NULL};
-        tw_diag_add(d, TW_ERROR, &src, NULL, NULL,
-                    "a NUL character (a NUL byte, or \\u0000) near byte %zu; expected text "
-                    "without NUL, which would cut a value short",
-                    nul);
-        return -1;
-    }
-    const char *end = NULL;
-    cJSON *root = data ? cJSON_ParseWithLengthOpts(data, len, &end, 0) : NULL;
-    if (!root) {
-        size_t at = end && end >= data && end <= data + len ? (size_t)(end - data) : 0;
-        tw_source src = {L.file, line_of(data, len, at), NULL};
-        tw_diag_add(d, TW_ERROR, &src, NULL, NULL,
-                    "not valid JSON near byte %zu; expected an object of site settings", at);
-        return -1;
-    }
-    while (end && end < data + len && strchr(" \t\r\n", *end) && *end)
-        end++;
-    if (end && end < data + len) {
-        size_t at = (size_t)(end - data);
-        tw_source src = {L.file, line_of(data, len, at), NULL};
-        tw_diag_add(d, TW_ERROR, &src, NULL, NULL,
-                    "unexpected data after the settings object near byte %zu", at);
-        cJSON_Delete(root);
-        return -1;
-    }
-    if (!cJSON_IsObject(root))
-        finding(&L, TW_ERROR, NULL, NULL, "expected a JSON object of site settings at the top");
-    else
-        apply(&L, root, s);
-    cJSON_Delete(root);
+    apply(&L, root, s);
+    tw_json_free(root, &spec);
     return L.errors ? -1 : 0;
 }
 

@@ -11,6 +11,7 @@
 
 #include "base/tw_atomic.h"
 #include "base/tw_util.h"
+#include "read/tw_json.h"
 
 #define MANIFEST_FORMAT "tagwright-manifest"
 #define MANIFEST_VERSION 1
@@ -187,27 +188,16 @@ int tw_manifest_load_mem(const char *name, const char *data, size_t len, tw_mani
     load_ctx c = {name, d, 0};
     memset(m, 0, sizeof *m);
     m->lock_fd = -1;
-    if (tw_json_value_bound(data, len) > TW_MAX_JSON_VALUES) {
-        load_error(&c, "$", NULL, "more than 5000000 JSON values; expected at most that");
-        return -1;
-    }
-    if (tw_json_find_nul(data, len) < len) {
-        load_error(&c, "$", NULL, "a NUL character (a NUL byte, or \\u0000); expected text "
-                   "without NUL, which would cut a value short");
-        return -1;
-    }
     tw_arena tree = {0};
-    json_in_arena(&tree);
-    cJSON *root = cJSON_ParseWithLength(data, len);
-    json_in_heap();
+    const tw_json_spec spec = {"a labels manifest object", TW_JSON_OBJECT, &tree};
+    cJSON *root = tw_json_parse(name, data, len, &spec, d);
     if (!root) {
         tw_arena_free(&tree);
-        load_error(&c, "$", NULL, "not valid JSON");
         return -1;
     }
     const cJSON *fmt = cJSON_GetObjectItemCaseSensitive(root, "format");
     const cJSON *labels = cJSON_GetObjectItemCaseSensitive(root, "labels");
-    if (!cJSON_IsObject(root) || !cJSON_IsString(fmt) || strcmp(fmt->valuestring, MANIFEST_FORMAT))
+    if (!cJSON_IsString(fmt) || strcmp(fmt->valuestring, MANIFEST_FORMAT))
         load_error(&c, "format", "format", "expected \"" MANIFEST_FORMAT "\"");
     else if (!cJSON_IsArray(labels))
         load_error(&c, "labels", "labels", "expected an array");

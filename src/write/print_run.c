@@ -705,11 +705,13 @@ int tw_print_labels_jobs(const tw_label *labels, size_t n, const tw_print_opts *
         if (g && g->path) /* name the field too: "labels[0]: equipment_id: ..." */
             snprintf(err, errlen, "%s:%s: %s%s%s", mpath, g->path, g->field ? g->field : "",
                      g->field ? ": " : "", msg);
+        else if (g && g->line)
+            snprintf(err, errlen, "%s:%ld: %s", mpath, g->line, msg);
         else
             snprintf(err, errlen, "%s", msg);
-        /* a finding at a JSON path is about the content; without one the file could not be
-         * locked or read */
-        rc = g && g->path ? TW_EXIT_DATA : TW_EXIT_IO;
+        /* a finding at a JSON path or a line is about the content; without either the file
+         * could not be locked or read */
+        rc = g && (g->path || g->line) ? TW_EXIT_DATA : TW_EXIT_IO;
         goto done_nomanifest;
     }
     rc = plan_volumes(n, o, volume_size, &p, err, errlen);
