@@ -129,13 +129,8 @@ static void row_error(tw_diags *d, const tw_row *r, const char *eq, tw_field f, 
 /* The distance exponent: the study's, else IEEE 1584-2002 Table 4 for the equipment type. */
 static int exponent_of(const tw_row *g, const char *eq, double *x, tw_diags *d)
 {
-    if (row_number(g, TW_F_DISTANCE_EXPONENT, x) == 0)
-        return 0;
-    double volts = 0;
-    row_number(g, TW_F_NOMINAL_VOLTAGE_V, &volts);
-    const char *type = tw_row_has(g, TW_F_EQUIPMENT_TYPE) ? g->text[TW_F_EQUIPMENT_TYPE] : NULL;
-    *x = tw_distance_exponent_for(type, volts, NULL);
-    if (*x > 0)   /* NAN when the table has no row */
+    *x = tw_row_distance_exponent(g, NULL);
+    if (*x > 0)   /* NAN when neither the study nor the table gives one */
         return 0;
     row_error(d, g, eq, TW_F_DISTANCE_EXPONENT,
               "missing, and IEEE 1584-2002 Table 4 has no exponent for this equipment type and "
@@ -320,10 +315,10 @@ static void print_warnings(const tw_rescale *r, const revised_bus *rb, const tw_
     if (r->warnings & TW_RESCALE_WARN_LONG_TIME)
         warn("new clearing time %g s is above %g s; IEEE 1584 suggests %g s as a reasonable "
              "maximum arc duration (common practice) - the rescaled energy may overstate or "
-             "misstate the hazard", r->new_time_s, TW_RESCALE_MAX_TIME_S, TW_RESCALE_MAX_TIME_S);
+             "misstate the hazard", r->new_time_s, TW_MAX_ARC_DURATION_S, TW_MAX_ARC_DURATION_S);
     if (r->warnings & TW_RESCALE_WARN_OLD_LONG_TIME)
         warn("the study's clearing time %g s is above %g s; its energy may have been capped "
-             "there, so scaling it is unreliable", r->old_time_s, TW_RESCALE_MAX_TIME_S);
+             "there, so scaling it is unreliable", r->old_time_s, TW_MAX_ARC_DURATION_S);
     if (r->warnings & TW_RESCALE_WARN_LARGE_FACTOR)
         warn("the clearing time changes by a factor of %.2f (outside 1/%g to %g); the device "
              "may clear the reduced arcing current in another time", r->new_time_s / r->old_time_s,

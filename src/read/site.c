@@ -32,12 +32,9 @@ static const struct {
     {"AR-40", 40},
 };
 
-/* NEC 110.16(B) (2020 edition): service equipment rated 1200 A or more gets the service
- * label. From memory, verify against the edition in force: the 2023 edition lowered this to
- * 1000 A and extended it to feeder-supplied equipment; a site on that edition sets 1000. */
-#define TW_SERVICE_LABEL_MIN_A 1200.0
-/* Common practice for DANGER (see rules.c). */
-#define TW_DANGER_ABOVE_CAL 40.0
+/* Highest service rating a threshold may name, amperes: a shape check only; the trade rule
+ * (NEC 110.16(B), at most the code's threshold) is tw_site_check_rules() in rules. */
+#define TW_MAX_SERVICE_A 1000000.0
 /* Longest site text accepted (site name, caution line, link, layout), bytes; longer is an
  * error, never truncated. */
 #define TW_MAX_SITE_TEXT TW_MAX_TEXT_BYTES
@@ -77,9 +74,7 @@ int tw_site_defaults(tw_site *s)
 {
     memset(s, 0, sizeof *s);
     s->show = TW_SHOW_INCIDENT_ENERGY;
-    s->danger_above_cal_cm2 = TW_DANGER_ABOVE_CAL;
     s->units = TW_UNITS_IMPERIAL_METRIC;
-    s->service_label_min_a = TW_SERVICE_LABEL_MIN_A;
     s->site_name = tw_strdup("");
     s->record_link = tw_strdup(TW_DEFAULT_RECORD_LINK);
     s->language = tw_strdup("en");
@@ -278,11 +273,11 @@ static void key_danger_above(loader *L, const cJSON *v, tw_site *s)
                   &s->danger_above_cal_cm2);
 }
 
-/* A higher threshold than the code's would leave required labels out, so it is refused; a
- * lower one (a stricter site, or the 2023 edition's 1000 A) is accepted. */
+/* A lower threshold than the code's (a stricter site, or the 2023 edition's 1000 A) is
+ * accepted; rules refuses a higher one (tw_site_check_rules). */
 static void key_service_min(loader *L, const cJSON *v, tw_site *s)
 {
-    read_positive(L, v, "service_label_min_a", "service_label_min_a", TW_SERVICE_LABEL_MIN_A,
+    read_positive(L, v, "service_label_min_a", "service_label_min_a", TW_MAX_SERVICE_A,
                   &s->service_label_min_a);
 }
 

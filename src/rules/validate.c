@@ -18,10 +18,6 @@
 #include "rules/tw_rules.h"
 #include "base/tw_util.h"
 
-/* NEC 110.16(B) (2020 and later): service equipment rated 1200 A or more carries a label with
- * the available fault current and the clearing time of the service overcurrent device. Used
- * when no site settings are given; a site may set its own threshold. */
-#define NEC_110_16B_MIN_A 1200.0
 
 typedef struct {
     tw_results *results;
@@ -136,7 +132,7 @@ static void check_ppe_category(const check_ctx *ctx, tw_row *r)
     if (!tw_row_has(r, TW_F_PPE_CATEGORY))
         return;
     double c = r->num[TW_F_PPE_CATEGORY];
-    if (!(c >= 1 && c <= 4))
+    if (!tw_ppe_category_valid(c))
         tw_row_diag(ctx->d, r, TW_ERROR, TW_F_PPE_CATEGORY, NULL,
                     "expected a PPE category from 1 to 4 (NFPA 70E Table 130.7(C)(15)(c)), got %g",
                     c);
@@ -185,8 +181,7 @@ static void check_service_equipment(const check_ctx *ctx, tw_row *r)
 {
     if (!tw_row_has(r, TW_F_SERVICE_EQUIPMENT) || r->num[TW_F_SERVICE_EQUIPMENT] == 0)
         return;
-    double min_a = ctx->site && ctx->site->service_label_min_a > 0 ? ctx->site->service_label_min_a
-                                                                   : NEC_110_16B_MIN_A;
+    double min_a = tw_service_label_min_a(ctx->site);
     if (!given(r, TW_F_SERVICE_RATING_A)) {
         tw_row_diag(ctx->d, r, TW_ERROR, TW_F_COUNT, tw_field_name(TW_F_SERVICE_RATING_A),
                     "missing; expected the rating of service equipment, to tell whether NEC "
@@ -277,21 +272,16 @@ static void check_infinite_bus(const check_ctx *ctx, tw_row *r)
                     (bolted / bound - 1) * 100, TW_INFINITE_BUS_TOLERANCE * 100);
 }
 
-/* The distance exponent for a row: its own column, else the IEEE 1584-2002 default for its
- * equipment type. NAN when neither is known. */
+/* The distance exponent for a row (tw_row_distance_exponent), and where it came from. */
 static double exponent_of(const tw_row *r, char *why, size_t n)
 {
-    if (tw_row_has(r, TW_F_DISTANCE_EXPONENT)) {
+    const char *source = NULL;
+    double x = tw_row_distance_exponent(r, &source);
+    if (!source)
         snprintf(why, n, "distance_exponent column");
-        return usable(r, TW_F_DISTANCE_EXPONENT) ? r->num[TW_F_DISTANCE_EXPONENT] : NAN;
-    }
-    if (!tw_row_has(r, TW_F_EQUIPMENT_TYPE) || !usable(r, TW_F_NOMINAL_VOLTAGE_V))
-        return NAN;
-    const char *source = "";
-    double x = tw_distance_exponent_for(r->text[TW_F_EQUIPMENT_TYPE],
-                                        r->num[TW_F_NOMINAL_VOLTAGE_V], &source);
-    snprintf(why, n, "%s default for %s; give the study's own distance_exponent if it used "
-             "IEEE 1584-2018", source, r->text[TW_F_EQUIPMENT_TYPE]);
+    else
+        snprintf(why, n, "%s default for %s; give the study's own distance_exponent if it used "
+                 "IEEE 1584-2018", source, r->text[TW_F_EQUIPMENT_TYPE]);
     return x;
 }
 
@@ -373,12 +363,12 @@ static void check_arcing_below_bolted(const check_ctx *ctx, tw_row *r)
 /* Common practice caps the arc duration at 2 s (an IEEE 1584 note). */
 static void check_clearing_time(const check_ctx *ctx, tw_row *r)
 {
-    if (usable(r, TW_F_CLEARING_TIME_S) && r->num[TW_F_CLEARING_TIME_S] > TW_MAX_CLEARING_S)
+    if (usable(r, TW_F_CLEARING_TIME_S) && r->num[TW_F_CLEARING_TIME_S] > TW_MAX_ARC_DURATION_S)
         tw_row_diag(ctx->d, r, TW_WARNING, TW_F_CLEARING_TIME_S, NULL,
                     "%g s is above %g s; common practice (an IEEE 1584 note) caps the arc "
                     "duration at %g s, since a person would most likely move away from the "
                     "arc: confirm the study's assumption", r->num[TW_F_CLEARING_TIME_S],
-                    TW_MAX_CLEARING_S, TW_MAX_CLEARING_S);
+                    TW_MAX_ARC_DURATION_S, TW_MAX_ARC_DURATION_S);
 }
 
 /* ---- buses ----------------------------------------------------------------------------- */
