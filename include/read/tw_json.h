@@ -56,6 +56,12 @@ cJSON *tw_json_parse(const char *file, const char *data, size_t len, const tw_js
 /* Free a tree from tw_json_parse() with the same spec. Accepts NULL. */
 void tw_json_free(cJSON *root, const tw_json_spec *spec);
 
+/* From here until tw_json_use_heap(), cJSON allocates every node and string (parsing and
+ * printing) from arena a, and its free does nothing. cJSON's hooks are process-wide: call
+ * both on one thread, around the cJSON calls only. */
+void tw_json_use_arena(tw_arena *a);
+void tw_json_use_heap(void);
+
 /* 1-based line of byte offset `at` in data (for a finding about a place in the text). */
 long tw_json_line_of(const char *data, size_t len, size_t at);
 

@@ -245,19 +245,27 @@ static void arena_free(void *ptr)
     (void)ptr; /* freed with the arena */
 }
 
+void tw_json_use_arena(tw_arena *a)
+{
+    hook_arena = a;
+    cJSON_Hooks hooks = {arena_malloc, arena_free};
+    cJSON_InitHooks(&hooks);
+}
+
+void tw_json_use_heap(void)
+{
+    cJSON_InitHooks(NULL);
+    hook_arena = NULL;
+}
+
 static cJSON *parse_text(parser *p, size_t start, const char **end)
 {
     tw_arena *arena = p->spec ? p->spec->arena : NULL;
-    if (arena) {
-        hook_arena = arena;
-        cJSON_Hooks hooks = {arena_malloc, arena_free};
-        cJSON_InitHooks(&hooks);
-    }
+    if (arena)
+        tw_json_use_arena(arena);
     cJSON *root = cJSON_ParseWithLengthOpts(p->data + start, p->len - start, end, 0);
-    if (arena) {
-        cJSON_InitHooks(NULL);
-        hook_arena = NULL;
-    }
+    if (arena)
+        tw_json_use_heap();
     return root;
 }
 

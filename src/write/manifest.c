@@ -49,40 +49,9 @@ static int reindex(tw_manifest *m)
     return 0;
 }
 
-/* ---- cJSON in an arena ---------------------------------------------------------------------
- *
- * A manifest of 10,000 labels is 10 MB of JSON: cJSON's tree of it is some 450,000 small
- * blocks, which took 200 ms to allocate and 100 ms to free one by one. While a manifest is
- * parsed or printed, cJSON allocates from an arena instead, freed at once; its free does
- * nothing (no tree made in an arena is ever given to cJSON_Delete). cJSON's hooks are
- * process-wide, so they are set only around those calls, which run on the one thread that
- * uses cJSON (worker threads and processes never do).
- */
-
-static tw_arena *json_arena;
-
-static void *arena_malloc(size_t n)
-{
-    return tw_arena_alloc(json_arena, n);
-}
-
-static void arena_free(void *p)
-{
-    (void)p; /* freed with the arena */
-}
-
-static void json_in_arena(tw_arena *a)
-{
-    json_arena = a;
-    cJSON_Hooks hooks = {arena_malloc, arena_free};
-    cJSON_InitHooks(&hooks);
-}
-
-static void json_in_heap(void)
-{
-    cJSON_InitHooks(NULL);
-    json_arena = NULL;
-}
+/* cJSON's tree of a manifest (hundreds of thousands of small blocks for 10,000 labels) is
+ * parsed and printed in an arena freed at once (tw_json_use_arena; docs/performance.md). Only
+ * the one thread that uses cJSON does so; worker threads and processes never do. */
 
 /* ---- loading ---------------------------------------------------------------------------- */
 
@@ -430,10 +399,10 @@ static cJSON *entry_json(const tw_manifest_entry *e)
  * entry's tree and text are made in arena a, emptied afterwards. */
 static int write_entry(FILE *fp, const tw_manifest_entry *e, int first, tw_arena *a)
 {
-    json_in_arena(a);
+    tw_json_use_arena(a);
     cJSON *o = entry_json(e);
     char *text = o ? cJSON_Print(o) : NULL;
-    json_in_heap();
+    tw_json_use_heap();
     if (!text) {
         tw_arena_free(a);
         return -1;
