@@ -69,6 +69,7 @@ void tw_site_free(tw_site *s)
     free_strings(s->cautions, s->caution_count);
     free(s->language);
     free(s->layout);
+    free(s->registry);
     memset(s, 0, sizeof *s);
 }
 
@@ -271,6 +272,11 @@ static void key_layout(loader *L, const cJSON *v, tw_site *s)
     read_text(L, v, "layout", "layout", 0, &s->layout);
 }
 
+static void key_registry(loader *L, const cJSON *v, tw_site *s)
+{
+    read_text(L, v, "registry", "registry", 0, &s->registry);
+}
+
 static void key_danger_above(loader *L, const cJSON *v, tw_site *s)
 {
     read_positive(L, v, "danger_above_cal_cm2", "danger_above_cal_cm2", TW_MAX_CAL,
@@ -420,6 +426,7 @@ static const struct {
     {"service_label_min_a", key_service_min},
     {"language", key_language},
     {"layout", key_layout},
+    {"registry", key_registry},
 };
 
 /* 1-based line of a byte offset, for parse errors. */
@@ -517,5 +524,18 @@ int tw_site_load(const char *path, tw_site *s, tw_diags *d)
     }
     int rc = tw_site_load_mem(path, data, len, s, d);
     free(data);
+    /* A relative registry path is relative to the settings file, so that every command finds
+     * the same registry wherever it is run from. */
+    const char *slash = strrchr(path, '/');
+    if (s->registry && s->registry[0] != '/' && slash) {
+        char *full = tw_asprintf("%.*s/%s", (int)(slash - path), path, s->registry);
+        if (!full) {
+            tw_source src = {path, 0, "registry"};
+            tw_diag_add(d, TW_ERROR, &src, NULL, "registry", "out of memory");
+            return -1;
+        }
+        free(s->registry);
+        s->registry = full;
+    }
     return rc;
 }

@@ -1,19 +1,17 @@
-/* manifest.c - the record of printed labels (see tw_manifest.h, schema in docs/manifest.md). */
+/* manifest.c - the JSON manifest reader, for `registry import` (see tw_manifest.h,
+ * docs/registry.md). */
 #include "write/tw_manifest.h"
 
 #include <cjson/cJSON.h>
-#include <errno.h>
-#include <fcntl.h>
 #include <stdlib.h>
 #include <string.h>
-#include <sys/file.h>
-#include <unistd.h>
 
-#include "base/tw_atomic.h"
 #include "base/tw_util.h"
 
 #define MANIFEST_FORMAT "tagwright-manifest"
-#define MANIFEST_VERSION 1
+/* Version 1: the manifest earlier builds wrote beside each PDF; version 2: `registry export`
+ * (adds removed revisions, approvals and study dates). */
+#define MANIFEST_VERSION_MAX 2
 
 /* A copy of s (NULL gives NULL) among the manifest's strings. An entry's strings are never
  * freed one by one: a replaced one stays until the manifest is closed (a few per label printed
@@ -89,6 +87,7 @@ typedef struct {
     const char *name;
     tw_diags *d;
     int bad;
+    int version;
 } load_ctx;
 
 static void load_error(load_ctx *c, const char *path, const char *field, const char *msg)
@@ -139,6 +138,28 @@ static int get_int(load_ctx *c, const cJSON *o, const char *key, const char *pat
     return v->valueint;
 }
 
+/* 1 (with a finding) when an object gives a key twice: cJSON keeps both and a lookup sees
+ * only the first, which would silently lose what the second says. */
+static int duplicate_key(load_ctx *c, const cJSON *o, const char *path)
+{
+    tw_map seen;
+    tw_map_init(&seen);
+    int dup = 0;
+    size_t i = 0, found;
+    for (const cJSON *a = o->child; a && !dup; a = a->next, i++) {
+        int r = a->string ? tw_map_get_or_put(&seen, a->string, i, &found) : 0;
+        if (r != 0) {
+            char msg[160];
+            snprintf(msg, sizeof msg, r < 0 ? "out of memory" : "the key \"%.80s\" is given "
+                     "twice; expected each key once", a->string);
+            load_error(c, path, a->string, msg);
+            dup = 1;
+        }
+    }
+    tw_map_free(&seen);
+    return dup;
+}
+
 static void load_entry(load_ctx *c, tw_manifest *m, const cJSON *o, size_t i)
 {
     char path[48];
@@ -147,6 +168,8 @@ static void load_entry(load_ctx *c, tw_manifest *m, const cJSON *o, size_t i)
         load_error(c, path, NULL, "expected an object");
         return;
     }
+    if (duplicate_key(c, o, path))
+        return;
     tw_manifest_entry *e = entry_new(m);
     if (!e) {
         load_error(c, path, NULL, "out of memory");
@@ -162,13 +185,21 @@ static void load_entry(load_ctx *c, tw_manifest *m, const cJSON *o, size_t i)
     e->changes = get_string(c, m, o, "changes", path, 0);
     e->payload = get_string(c, m, o, "payload", path, 0);
     e->content = get_string(c, m, o, "content", path, 0);
+    e->study_date = get_string(c, m, o, "study_date", path, 0);
+    e->approved_by = get_string(c, m, o, "approved_by", path, 0);
+    e->lowered = get_string(c, m, o, "lowered", path, 0);
+    e->removed_on = get_string(c, m, o, "removed_on", path, 0);
+    e->removed_reason = get_string(c, m, o, "removed_reason", path, 0);
     e->revision = get_int(c, o, "revision", path, 1);
     e->volume = get_int(c, o, "volume", path, 1);
     e->page = get_int(c, o, "page", path, 1);
     const char *status = peek_string(c, o, "status", path, 1);
-    if (status && strcmp(status, "current") && strcmp(status, "superseded"))
-        load_error(c, path, "status", "expected \"current\" or \"superseded\"");
+    if (status && strcmp(status, "current") && strcmp(status, "superseded") &&
+        (c->version < 2 || strcmp(status, "removed")))
+        load_error(c, path, "status", c->version < 2 ? "expected \"current\" or \"superseded\""
+                   : "expected \"current\", \"superseded\" or \"removed\"");
     e->current = status && !strcmp(status, "current");
+    e->removed = status && !strcmp(status, "removed");
     m->count++;
     if (!e->equipment_id || !e->content_hash)
         return;
@@ -177,6 +208,8 @@ static void load_entry(load_ctx *c, tw_manifest *m, const cJSON *o, size_t i)
         load_error(c, path, "status", "a second current revision for the same equipment");
         return;
     }
+    if (!e->current && !e->removed && !e->superseded_on && c->version >= 2)
+        load_error(c, path, "superseded_on", "expected the date it was superseded");
     if (e->current && tw_map_put(&m->current, e->equipment_id, m->count - 1))
         load_error(c, path, NULL, "out of memory");
 }
@@ -184,9 +217,8 @@ static void load_entry(load_ctx *c, tw_manifest *m, const cJSON *o, size_t i)
 int tw_manifest_load_mem(const char *name, const char *data, size_t len, tw_manifest *m,
                          tw_diags *d)
 {
-    load_ctx c = {name, d, 0};
+    load_ctx c = {name, d, 0, 1};
     memset(m, 0, sizeof *m);
-    m->lock_fd = -1;
     if (tw_json_value_bound(data, len) > TW_MAX_JSON_VALUES) {
         load_error(&c, "$", NULL, "more than 5000000 JSON values; expected at most that");
         return -1;
@@ -207,8 +239,18 @@ int tw_manifest_load_mem(const char *name, const char *data, size_t len, tw_mani
     }
     const cJSON *fmt = cJSON_GetObjectItemCaseSensitive(root, "format");
     const cJSON *labels = cJSON_GetObjectItemCaseSensitive(root, "labels");
+    const cJSON *version = cJSON_GetObjectItemCaseSensitive(root, "version");
+    if (cJSON_IsNumber(version))
+        c.version = (int)version->valuedouble;
     if (!cJSON_IsObject(root) || !cJSON_IsString(fmt) || strcmp(fmt->valuestring, MANIFEST_FORMAT))
         load_error(&c, "format", "format", "expected \"" MANIFEST_FORMAT "\"");
+    else if (!cJSON_IsNumber(version) || version->valuedouble < 1 ||
+             version->valuedouble > MANIFEST_VERSION_MAX ||
+             version->valuedouble != (double)c.version)
+        load_error(&c, "version", "version", "expected 1 (a manifest) or 2 (a registry export); "
+                   "a file of another version is not read, so that nothing in it is lost");
+    else if (duplicate_key(&c, root, "$"))
+        ;
     else if (!cJSON_IsArray(labels))
         load_error(&c, "labels", "labels", "expected an array");
     else {
@@ -222,59 +264,12 @@ int tw_manifest_load_mem(const char *name, const char *data, size_t len, tw_mani
     return c.bad ? -1 : 0;
 }
 
-int tw_manifest_open(const char *path, tw_manifest *m, tw_diags *d)
-{
-    memset(m, 0, sizeof *m);
-    m->lock_fd = -1;
-    tw_source src = {path, 0, NULL};
-    char *lock_path = tw_asprintf("%s.lock", path);
-    int fd = lock_path ? open(lock_path, O_RDWR | O_CREAT | O_CLOEXEC, 0644) : -1;
-    if (fd < 0 || flock(fd, LOCK_EX) != 0) {
-        tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "cannot lock %s: %s",
-                    lock_path ? lock_path : path, strerror(errno));
-        if (fd >= 0)
-            close(fd);
-        free(lock_path);
-        return -1;
-    }
-    free(lock_path);
-    char err[512] = "";
-    size_t len = 0;
-    char *data = NULL;
-    if (access(path, F_OK) == 0 && !(data = tw_read_file(path, &len, err, sizeof err))) {
-        tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "%s", err);
-        close(fd);
-        return -1;
-    }
-    int rc = 0;
-    if (data)
-        rc = tw_manifest_load_mem(path, data, len, m, d);
-    free(data);
-    m->lock_fd = fd;
-    m->path = tw_strdup(path);
-    if (rc != 0 || !m->path) {
-        if (!m->path)
-            close(fd);
-        tw_manifest_close(m);
-        return -1;
-    }
-    return 0;
-}
-
 /* ---- queries and updates ----------------------------------------------------------------- */
 
 const tw_manifest_entry *tw_manifest_current(const tw_manifest *m, const char *equipment_id)
 {
     size_t i;
     return tw_map_get(&m->current, equipment_id, &i) ? &m->entries[i] : NULL;
-}
-
-int tw_manifest_next_revision(const tw_manifest *m, const char *equipment_id, const char *hash)
-{
-    const tw_manifest_entry *cur = tw_manifest_current(m, equipment_id);
-    if (!cur)
-        return 1;
-    return strcmp(cur->content_hash, hash) == 0 ? cur->revision : cur->revision + 1;
 }
 
 /* Value of "key=" in a canonical form, as a fresh string, or NULL. */
@@ -342,163 +337,10 @@ char *tw_manifest_changes(const char *old_content, const char *new_content)
     return out;
 }
 
-static int fill_entry(tw_manifest *m, tw_manifest_entry *e, const tw_manifest_print *p,
-                      int revision)
-{
-    e->equipment_id = keep(m, p->equipment_id);
-    e->content_hash = keep(m, p->hash);
-    e->content = keep(m, p->content);
-    e->study_id = keep(m, p->study_id);
-    e->printed = keep(m, p->printed);
-    e->output = keep(m, p->output);
-    e->payload = keep(m, p->payload);
-    e->reason = keep(m, p->reason);
-    e->revision = revision;
-    e->volume = p->volume;
-    e->page = p->page;
-    e->current = 1;
-    return e->equipment_id && e->content_hash && e->printed ? 0 : -1;
-}
-
-/* Same content printed again: keep the revision, note where it now is. */
-static int reprint_same(tw_manifest *m, tw_manifest_entry *cur, const tw_manifest_print *p)
-{
-    char *printed = keep(m, p->printed), *output = keep(m, p->output);
-    char *payload = keep(m, p->payload);
-    if (!printed || (p->output && !output) || (p->payload && !payload))
-        return -1;
-    cur->printed = printed;
-    cur->output = output;
-    cur->payload = payload;
-    cur->volume = p->volume;
-    cur->page = p->page;
-    return cur->revision;
-}
-
-int tw_manifest_record(tw_manifest *m, const tw_manifest_print *p)
-{
-    size_t ci;
-    int has_cur = tw_map_get(&m->current, p->equipment_id, &ci);
-    if (has_cur && !strcmp(m->entries[ci].content_hash, p->hash))
-        return reprint_same(m, &m->entries[ci], p);
-    tw_manifest_entry *e = entry_new(m);
-    if (!e)
-        return -1;
-    int revision = has_cur ? m->entries[ci].revision + 1 : 1;
-    char *diff = has_cur ? tw_manifest_changes(m->entries[ci].content, p->content) : NULL;
-    char *changes = keep(m, diff);
-    free(diff);
-    char *superseded_on = has_cur ? keep(m, p->printed) : NULL;
-    /* The index holds pointers to the equipment ID strings, which never move, and array
-     * positions, so one put keeps it right (rebuilding it per record made printing quadratic).
-     * Put before committing: on failure the manifest is unchanged. */
-    if (fill_entry(m, e, p, revision) != 0 || (has_cur && (!changes || !superseded_on)) ||
-        tw_map_put(&m->current, e->equipment_id, m->count) != 0) {
-        memset(e, 0, sizeof *e); /* its strings stay in the arena, unused */
-        return -1;
-    }
-    e->changes = changes;
-    m->count++;
-    if (has_cur) {
-        m->entries[ci].current = 0;
-        m->entries[ci].superseded_on = superseded_on;
-    }
-    return revision;
-}
-
-/* ---- saving --------------------------------------------------------------------------------- */
-
-static int add_str(cJSON *o, const char *key, const char *v)
-{
-    return (v ? cJSON_AddStringToObject(o, key, v) : cJSON_AddNullToObject(o, key)) ? 0 : -1;
-}
-
-static cJSON *entry_json(const tw_manifest_entry *e)
-{
-    cJSON *o = cJSON_CreateObject();
-    if (!o)
-        return NULL;
-    int bad = add_str(o, "equipment_id", e->equipment_id);
-    bad |= !cJSON_AddNumberToObject(o, "revision", e->revision);
-    bad |= add_str(o, "status", e->current ? "current" : "superseded");
-    bad |= add_str(o, "content_hash", e->content_hash);
-    bad |= add_str(o, "study_id", e->study_id);
-    bad |= add_str(o, "printed", e->printed);
-    bad |= add_str(o, "output", e->output);
-    bad |= !cJSON_AddNumberToObject(o, "volume", e->volume);
-    bad |= !cJSON_AddNumberToObject(o, "page", e->page);
-    bad |= add_str(o, "payload", e->payload);
-    bad |= add_str(o, "reason", e->reason);
-    bad |= add_str(o, "changes", e->changes);
-    bad |= add_str(o, "superseded_on", e->superseded_on);
-    bad |= add_str(o, "content", e->content);
-    return bad ? NULL : o; /* in the arena: nothing to delete */
-}
-
-/* One entry as cJSON_Print() prints it two levels deep: every line after the first indented
- * by two more tabs. (cJSON escapes line breaks inside strings, so each '\n' is layout.) The
- * entry's tree and text are made in arena a, emptied afterwards. */
-static int write_entry(FILE *fp, const tw_manifest_entry *e, int first, tw_arena *a)
-{
-    json_in_arena(a);
-    cJSON *o = entry_json(e);
-    char *text = o ? cJSON_Print(o) : NULL;
-    json_in_heap();
-    if (!text) {
-        tw_arena_free(a);
-        return -1;
-    }
-    int bad = !first && fputs(", ", fp) < 0;
-    for (const char *p = text; !bad && *p;) {
-        const char *nl = strchr(p, '\n');
-        size_t n = nl ? (size_t)(nl - p) + 1 : strlen(p);
-        bad = fwrite(p, 1, n, fp) != n || (nl && fputs("\t\t", fp) < 0);
-        p += n;
-    }
-    tw_arena_free(a);
-    return bad ? -1 : 0;
-}
-
-/* Written entry by entry, byte for byte what cJSON_Print() gives for the whole document, so
- * that a large manifest never needs its whole JSON tree in memory (100,000 labels would take
- * some 300 MiB). */
-int tw_manifest_save(tw_manifest *m, char *err, size_t errlen)
-{
-    tw_atomic a;
-    if (tw_manifest_write(m, &a, err, errlen) != 0)
-        return -1;
-    return tw_atomic_commit(&a, err, errlen);
-}
-
-int tw_manifest_write(tw_manifest *m, tw_atomic *a, char *err, size_t errlen)
-{
-    if (tw_atomic_open(a, m->path, err, errlen) != 0)
-        return -1;
-    int bad = fputs("{\n\t\"labels\":\t[", a->fp) < 0;
-    tw_arena entry = {0};
-    for (size_t i = 0; !bad && i < m->count; i++)
-        bad = write_entry(a->fp, &m->entries[i], i == 0, &entry) != 0;
-    if (!bad)
-        bad = fprintf(a->fp, "],\n\t\"format\":\t\"%s\",\n\t\"version\":\t%d\n}\n",
-                      MANIFEST_FORMAT, MANIFEST_VERSION) < 0;
-    if (bad) {
-        snprintf(err, errlen, "%s: out of memory or write error while writing the manifest",
-                 m->path);
-        tw_atomic_abort(a);
-        return -1;
-    }
-    return tw_atomic_prepare(a, err, errlen);
-}
-
 void tw_manifest_close(tw_manifest *m)
 {
     free(m->entries);
     tw_arena_free(&m->strings);
     tw_map_free(&m->current);
-    /* Only tw_manifest_open() takes a lock; a zeroed struct (lock_fd 0) must not close stdin. */
-    if (m->path && m->lock_fd >= 0)
-        close(m->lock_fd); /* closing releases the flock */
-    free(m->path);
     memset(m, 0, sizeof *m);
-    m->lock_fd = -1;
 }
