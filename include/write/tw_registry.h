@@ -158,4 +158,9 @@ int tw_registry_export(tw_registry *r, FILE *out, int csv, const tw_rev_status *
 int tw_registry_import(tw_registry *r, const char *name, const char *data, size_t len,
                        size_t *count, char *err, size_t errlen);
 
+/* The manifest reader's checks alone, before a registry is opened or made: 0, or
+ * TW_EXIT_DATA with the first finding ("FILE:PATH: field: message") in err. */
+int tw_registry_import_check(const char *name, const char *data, size_t len, char *err,
+                             size_t errlen);
+
 #endif

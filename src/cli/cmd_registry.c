@@ -120,19 +120,28 @@ static char *registry_path(const registry_args *a, int *rc)
     return path;
 }
 
-static int import_file(tw_registry *r, const char *file)
+/* The manifest to import, read and checked before the registry is opened (or made). */
+static char *read_manifest(const char *file, size_t *len, int *rc)
 {
     char err[1024] = "";
-    size_t len = 0, count = 0;
-    char *data = tw_read_file(file, &len, err, sizeof err);
-    if (!data) {
-        fprintf(stderr, "tagwright registry: %s\n", err);
-        return TW_EXIT_IO;
+    char *data = tw_read_file(file, len, err, sizeof err);
+    *rc = data ? tw_registry_import_check(file, data, *len, err, sizeof err) : TW_EXIT_IO;
+    if (*rc != TW_EXIT_OK) {
+        fprintf(stderr, "tagwright registry: %s\ntagwright registry: nothing imported\n", err);
+        free(data);
+        return NULL;
     }
+    return data;
+}
+
+static int import_file(tw_registry *r, const char *file, char *data, size_t len)
+{
+    char err[1024] = "";
+    size_t count = 0;
     int rc = tw_registry_import(r, file, data, len, &count, err, sizeof err);
     free(data);
     if (rc != TW_EXIT_OK)
-        fprintf(stderr, "tagwright registry: %s; nothing imported\n", err);
+        fprintf(stderr, "tagwright registry: %s\ntagwright registry: nothing imported\n", err);
     else
         printf("%s: %zu revision%s imported into %s\n", file, count, count == 1 ? "" : "s",
                r->path);
@@ -145,20 +154,27 @@ int cmd_registry(int argc, char **argv)
     int rc = parse_args(argc, argv, &a);
     if (rc != 0)
         return rc < 0 ? TW_EXIT_OK : rc;
+    size_t len = 0;
+    char *data = a.import ? read_manifest(a.file, &len, &rc) : NULL;
+    if (rc != TW_EXIT_OK)
+        return rc;
     char *path = registry_path(&a, &rc);
-    if (!path)
+    if (!path) {
+        free(data);
         return rc ? rc : TW_EXIT_IO;
+    }
     tw_registry r;
     char err[1024] = "";
     rc = tw_registry_open(&r, path, a.import, err, sizeof err);
     if (rc != TW_EXIT_OK)
         fprintf(stderr, "tagwright registry: %s\n", err);
     else if (a.import)
-        rc = import_file(&r, a.file);
+        rc = import_file(&r, a.file, data, len);
     else if ((rc = tw_registry_export(&r, stdout, a.csv, a.has_status ? &a.status : NULL, err,
                                       sizeof err)) != TW_EXIT_OK)
         fprintf(stderr, "tagwright registry: %s\n", err);
     tw_registry_close(&r);
     free(path);
+    free(data);
     return rc;
 }

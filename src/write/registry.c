@@ -159,10 +159,10 @@ static char *real_path(const char *path, int write, char *err, size_t errlen, in
     struct stat sb;
     *rc = TW_EXIT_IO;
     if (stat(path, &sb) == 0) {
-        if (!S_ISREG(sb.st_mode)) {
-            *rc = TW_EXIT_DATA;
-            snprintf(err, errlen, "%s: not a regular file; expected a tagwright registry (an "
-                     "SQLite database)", path);
+        if (!S_ISREG(sb.st_mode)) { /* as for any output: refused, not an I/O attempt */
+            snprintf(err, errlen, "%s: %s; expected a tagwright registry file (an SQLite "
+                     "database)", path, S_ISDIR(sb.st_mode) ? "is a directory"
+                                                            : "not a regular file");
             return NULL;
         }
         char *p = realpath(path, NULL);
@@ -1225,8 +1225,7 @@ static int hash_matches(const char *content, const char *hash)
 /* The manifest's own rules, beyond what its reader checks: content matches its hash, every
  * equipment ID has one spelling, each revision number appears once per equipment, and no
  * equipment is already in the registry. */
-static int import_check(tw_registry *r, const char *name, const tw_manifest *m, char *err,
-                        size_t errlen)
+static int import_rules(const char *name, const tw_manifest *m, char *err, size_t errlen)
 {
     tw_map seen;
     tw_map_init(&seen);
@@ -1261,6 +1260,13 @@ static int import_check(tw_registry *r, const char *name, const tw_manifest *m, 
     }
     tw_map_free(&seen);
     tw_arena_free(&keys);
+    return rc;
+}
+
+static int import_check(tw_registry *r, const char *name, const tw_manifest *m, char *err,
+                        size_t errlen)
+{
+    int rc = import_rules(name, m, err, errlen);
     sqlite3_stmt *st = rc ? NULL : prepare(r, "SELECT equipment_id FROM equipment "
                                               "WHERE equipment_id = ?1");
     for (size_t i = 0; !rc && st && i < m->count; i++) {
@@ -1318,24 +1324,46 @@ static int import_entry(tw_registry *r, sqlite3_stmt *eq, sqlite3_stmt *find, sq
     return step_done(add);
 }
 
-int tw_registry_import(tw_registry *r, const char *name, const char *data, size_t len,
-                       size_t *count, char *err, size_t errlen)
+/* Load a manifest; TW_EXIT_DATA with the first finding ("FILE:PATH: field: message"). */
+static int import_load(const char *name, const char *data, size_t len, tw_manifest *m,
+                       char *err, size_t errlen)
 {
-    tw_manifest m;
     tw_diags d;
     tw_diags_init(&d);
-    *count = 0;
-    if (tw_manifest_load_mem(name, data, len, &m, &d) != 0) {
+    if (tw_manifest_load_mem(name, data, len, m, &d) != 0) {
         const tw_diag *g = d.count ? &d.items[0] : NULL;
         fail(err, errlen, TW_EXIT_DATA, "%s:%s: %s%s%s", name, g && g->path ? g->path : "$",
              g && g->field ? g->field : "", g && g->field ? ": " : "",
              g && g->message ? g->message : "not a manifest");
         tw_diags_free(&d);
-        tw_manifest_close(&m);
+        tw_manifest_close(m);
         return TW_EXIT_DATA;
     }
     tw_diags_free(&d);
-    int rc = exec(r, "BEGIN IMMEDIATE", err, errlen);
+    return 0;
+}
+
+int tw_registry_import_check(const char *name, const char *data, size_t len, char *err,
+                             size_t errlen)
+{
+    tw_manifest m;
+    int rc = import_load(name, data, len, &m, err, errlen);
+    if (rc == 0) {
+        rc = import_rules(name, &m, err, errlen);
+        tw_manifest_close(&m);
+    }
+    return rc;
+}
+
+int tw_registry_import(tw_registry *r, const char *name, const char *data, size_t len,
+                       size_t *count, char *err, size_t errlen)
+{
+    tw_manifest m;
+    *count = 0;
+    int rc = import_load(name, data, len, &m, err, errlen);
+    if (rc)
+        return rc;
+    rc = exec(r, "BEGIN IMMEDIATE", err, errlen);
     if (!rc)
         rc = import_check(r, name, &m, err, errlen);
     sqlite3_stmt *eq = rc ? NULL : prepare(r, "INSERT INTO equipment(equipment_id) VALUES (?1)");
