@@ -134,12 +134,11 @@ static char *read_manifest(const char *file, size_t *len, int *rc)
     return data;
 }
 
-static int import_file(tw_registry *r, const char *file, char *data, size_t len)
+static int import_file(tw_registry *r, const char *file, const char *data, size_t len)
 {
     char err[1024] = "";
     size_t count = 0;
     int rc = tw_registry_import(r, file, data, len, &count, err, sizeof err);
-    free(data);
     if (rc != TW_EXIT_OK)
         fprintf(stderr, "tagwright registry: %s\ntagwright registry: nothing imported\n", err);
     else

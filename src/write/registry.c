@@ -192,9 +192,9 @@ static char *real_path(const char *path, int write, char *err, size_t errlen, in
 }
 
 /* A JSON manifest, or something that is not SQLite, is not opened as a registry. */
-static int check_file_kind(const char *path, char *err, size_t errlen)
+static int check_file_kind(const char *real, const char *path, char *err, size_t errlen)
 {
-    FILE *f = fopen(path, "rb");
+    FILE *f = fopen(real, "rb");
     if (!f)
         return 0; /* not there yet */
     char head[16] = {0};
@@ -311,7 +311,7 @@ int tw_registry_open(tw_registry *r, const char *path, int write, char *err, siz
     r->path = real_path(path, write, err, errlen, &rc);
     if (!r->path)
         return rc;
-    if ((rc = check_file_kind(r->path, err, errlen)) != 0)
+    if ((rc = check_file_kind(r->path, path, err, errlen)) != 0)
         goto fail;
     /* A writer queues for the lock; a reader takes it only if it is free, to finish a run that
      * a killed writer left half published. */
