@@ -449,6 +449,34 @@ static void check_voltage_agreement(const check_ctx *ctx, const tw_bus *b)
     }
 }
 
+/* A bus's rows come from one study revision: a label shows one study ID and date, and its review
+ * date (NFPA 70E 130.5(G), five years) follows from that date, so rows of different studies
+ * would give a label and a `due` listing that disagree about which study governs. */
+static void check_one_study(const check_ctx *ctx, const tw_bus *b)
+{
+    const tw_row *ref = NULL;
+    for (size_t i = 0; i < b->count; i++) {
+        tw_row *r = b->rows[i];
+        if (!ref) {
+            ref = r;
+            continue;
+        }
+        static const tw_field fields[] = {TW_F_STUDY_ID, TW_F_STUDY_DATE};
+        for (size_t k = 0; k < 2; k++) {
+            tw_field f = fields[k];
+            const char *a = tw_row_has(r, f) ? r->text[f] : "", *o = tw_row_has(ref, f) ? ref->text[f] : "";
+            if (strcmp(a ? a : "", o ? o : "") == 0)
+                continue;
+            char at[64];
+            where(ref, at, sizeof at);
+            tw_row_diag(ctx->d, r, TW_ERROR, f, NULL,
+                        "'%s' here, '%s' at %s; expected every scenario of a bus from one study "
+                        "revision (its label and its review date name one study)",
+                        a ? a : "", o ? o : "", at);
+        }
+    }
+}
+
 /* ---- the table --------------------------------------------------------------------------- */
 
 static const tw_check checks[] = {
@@ -466,6 +494,7 @@ static const tw_check checks[] = {
     {"clearing-time-2s", check_clearing_time, NULL},
     {"one-row-per-scenario", NULL, check_duplicate_ids},
     {"voltage-across-scenarios", NULL, check_voltage_agreement},
+    {"one-study-per-bus", NULL, check_one_study},
 };
 
 size_t tw_validate(tw_results *r, const tw_bus_set *buses, const tw_site *site, tw_diags *d)
