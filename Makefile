@@ -34,7 +34,7 @@ TEST_SRC = $(wildcard tests/unit/test_*.c)
 TESTS    = $(TEST_SRC:tests/unit/%.c=$(BUILD)/tests/%)
 BIN      = $(BUILD)/tagwright
 
-.PHONY: all demo check unit e2e asan-check deps install clean fuzz fuzz-build valgrind bench layers
+.PHONY: all demo check unit e2e asan-check deps install clean fuzz fuzz-build valgrind bench bench-registry layers
 all: $(BIN)
 
 # V=1 shows the full commands.
@@ -127,5 +127,15 @@ clean:
 # Synthetic studies of 1,000, 10,000 and 100,000 buses: labels/s, wall and CPU time, peak
 # memory, and the growth exponent (bench/run.py; docs/performance.md). BENCH_ARGS adds options,
 # e.g. BENCH_ARGS="--sizes 1000,10000 --repeat 3".
-bench: $(BIN)
+bench: $(BIN) $(BUILD)/bench/record
 	python3 bench/run.py --bin $(BIN) $(BENCH_ARGS)
+	python3 bench/registry.py --bin $(BIN) --record $(BUILD)/bench/record
+
+# The registry alone (bench/registry.py): verify and a one-label reprint beside 1,000 and
+# 50,000 labels, and recording a 10,000-label run.
+bench-registry: $(BIN) $(BUILD)/bench/record
+	python3 bench/registry.py --bin $(BIN) --record $(BUILD)/bench/record $(REGISTRY_BENCH_ARGS)
+
+$(BUILD)/bench/record: bench/record.c $(BUILD)/libtagwright.a
+	@mkdir -p $(@D)
+	$(Q)$(CC) $(CPPFLAGS) $(CFLAGS) $(LDFLAGS) -o $@ $< $(BUILD)/libtagwright.a $(LDLIBS)

@@ -326,15 +326,94 @@ static int diff_keys(char **out, const char *walk, const char *oldc, const char 
     return 0;
 }
 
+/* The lines of a canonical form as key/value spans; 0, or -1 when it has more than max. */
+typedef struct {
+    const char *key, *value;
+    size_t keylen, valuelen;
+} line_span;
+
+static int split_lines(const char *c, line_span *out, size_t max, size_t *n)
+{
+    *n = 0;
+    for (const char *p = c; p && *p;) {
+        const char *eol = strchr(p, '\n'), *end = eol ? eol : p + strlen(p);
+        const char *eq = memchr(p, '=', (size_t)(end - p));
+        if (!eq)
+            break; /* as the key-by-key walk does: the rest is not key=value */
+        if (*n == max)
+            return -1;
+        out[(*n)++] = (line_span){p, eq + 1, (size_t)(eq - p), (size_t)(end - eq - 1)};
+        p = eol ? eol + 1 : NULL;
+    }
+    return 0;
+}
+
+static const line_span *find_key(const line_span *l, size_t n, const line_span *k)
+{
+    for (size_t i = 0; i < n; i++)
+        if (l[i].keylen == k->keylen && !memcmp(l[i].key, k->key, k->keylen))
+            return &l[i];
+    return NULL;
+}
+
+/* "key: old -> new" appended to a growing buffer. */
+static int add_change(char **buf, size_t *len, size_t *cap, const line_span *k,
+                      const line_span *o, const line_span *nw)
+{
+    size_t need = *len + 2 + k->keylen + 2 + (o ? o->valuelen : 6) + 4 + (nw ? nw->valuelen : 6) + 1;
+    if (need > *cap) {
+        size_t c = need * 2;
+        char *g = realloc(*buf, c);
+        if (!g)
+            return -1;
+        *buf = g;
+        *cap = c;
+    }
+    int n = snprintf(*buf + *len, *cap - *len, "%s%.*s: %.*s -> %.*s", *len ? "; " : "",
+                     (int)k->keylen, k->key, o ? (int)o->valuelen : 6, o ? o->value : "(none)",
+                     nw ? (int)nw->valuelen : 6, nw ? nw->value : "(none)");
+    *len += (size_t)n;
+    return 0;
+}
+
+/* Linear in the two forms (a label has some 25 fields): every key of the new form that is
+ * added or changed, in its order, then every key the new form lost. The first value of a key
+ * counts, as in a lookup. Forms of more than 64 lines take the key-by-key walk. */
 char *tw_manifest_changes(const char *old_content, const char *new_content)
 {
-    char *out = tw_strdup("");
     const char *o = old_content ? old_content : "", *n = new_content ? new_content : "";
-    if (!out || diff_keys(&out, n, o, n, NULL) || diff_keys(&out, o, o, n, n)) {
-        free(out);
+    line_span ol[64], nl[64];
+    size_t on, nn;
+    if (split_lines(o, ol, 64, &on) || split_lines(n, nl, 64, &nn)) {
+        char *out = tw_strdup("");
+        if (!out || diff_keys(&out, n, o, n, NULL) || diff_keys(&out, o, o, n, n)) {
+            free(out);
+            return NULL;
+        }
+        return out;
+    }
+    char *buf = malloc(256);
+    size_t len = 0, cap = 256;
+    if (!buf)
+        return NULL;
+    buf[0] = '\0';
+    int bad = 0;
+    for (size_t i = 0; !bad && i < nn; i++) {
+        const line_span *first = find_key(nl, nn, &nl[i]);
+        if (first != &nl[i])
+            continue; /* a key given twice: its first value was compared */
+        const line_span *ov = find_key(ol, on, &nl[i]);
+        if (!ov || ov->valuelen != first->valuelen || memcmp(ov->value, first->value, ov->valuelen))
+            bad = add_change(&buf, &len, &cap, &nl[i], ov, first);
+    }
+    for (size_t i = 0; !bad && i < on; i++)
+        if (find_key(ol, on, &ol[i]) == &ol[i] && !find_key(nl, nn, &ol[i]))
+            bad = add_change(&buf, &len, &cap, &ol[i], &ol[i], NULL);
+    if (bad) {
+        free(buf);
         return NULL;
     }
-    return out;
+    return buf;
 }
 
 void tw_manifest_close(tw_manifest *m)
