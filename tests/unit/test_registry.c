@@ -359,6 +359,7 @@ static void an_export_should_import_into_the_same_registry_content(void **state)
                                         sizeof err), TW_EXIT_DATA);
     assert_non_null(strstr(err, "already in the registry"));
     /* the imported hazard is read back from the content: lowering it again is caught */
+    tw_label_free(&l);
     label_of(&l, "MCC-1", 1.0, 0);
     int rev;
     char *low = NULL;
