@@ -15,7 +15,7 @@
 CC      ?= cc
 PREFIX  ?= /usr/local
 BUILD   ?= build
-PKGS     = libcjson libqrencode libcrypto sqlite3
+PKGS     = libcjson libqrencode libcrypto icu-uc freetype2 sqlite3
 CSTD     = -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE
 WARN     = -Wall -Wextra -Werror -Wshadow -Wstrict-prototypes -Wformat=2
 OPT     ?= -O2 -g
@@ -23,7 +23,7 @@ DATADIR  = $(PREFIX)/share/tagwright
 CPPFLAGS += -Iinclude -DTW_DATADIR='"$(DATADIR)"' $(shell pkg-config --cflags $(PKGS) 2>/dev/null)
 CFLAGS  ?=
 CFLAGS  += $(CSTD) $(WARN) $(OPT) $(EXTRA_CFLAGS)
-LDLIBS  += -lhpdf -lcsv $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lcjson -lqrencode -lcrypto -lsqlite3) -lpng -lz -lm -lpthread
+LDLIBS  += -lhpdf -lcsv $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lcjson -lqrencode -lcrypto -licuuc -licudata -lfreetype -lsqlite3) -lpng -lz -lm -lpthread
 LDFLAGS += $(EXTRA_LDFLAGS)
 
 STAGES   = base read rules write cli

@@ -16,6 +16,7 @@
 #include <cjson/cJSON.h>
 
 #include "read/tw_results.h"
+#include "base/tw_fonts.h"
 #include "base/tw_util.h"
 
 /* Default PPE levels: names of our own; arc ratings at the NFPA 70E Table 130.7(C)(15)(c)
@@ -459,6 +460,31 @@ static void apply(loader *L, const cJSON *root, tw_site *s)
     }
 }
 
+/* Every site text a label or permit prints must be drawable as it reads (tw_fonts.h). */
+static void check_drawable(loader *L, const char *path, const char *field, const char *text)
+{
+    uint32_t cp = 0;
+    tw_draw_problem p = text ? tw_text_drawable(text, &cp) : TW_DRAW_OK;
+    if (p != TW_DRAW_OK) {
+        char why[512];
+        finding(L, TW_ERROR, path, field, "%s", tw_draw_problem_text(p, cp, why, sizeof why));
+    }
+}
+
+static void check_printed_texts(loader *L, const tw_site *s)
+{
+    char path[64];
+    check_drawable(L, "site_name", "site_name", s->site_name);
+    for (size_t i = 0; i < s->caution_count; i++) {
+        snprintf(path, sizeof path, "cautions[%zu]", i);
+        check_drawable(L, path, "cautions", s->cautions[i]);
+    }
+    for (size_t i = 0; i < s->ppe_level_count; i++) {
+        snprintf(path, sizeof path, "ppe_levels[%zu].name", i);
+        check_drawable(L, path, "name", s->ppe_levels[i].name);
+    }
+}
+
 /* s is (re)initialised here, so callers pass a zeroed or uninitialised struct; it is left
  * freeable with tw_site_free() whatever happens. */
 int tw_site_load_mem(const char *name, const char *data, size_t len, tw_site *s, tw_diags *d)
@@ -507,6 +533,7 @@ int tw_site_load_mem(const char *name, const char *data, size_t len, tw_site *s,
     else
         apply(&L, root, s);
     cJSON_Delete(root);
+    check_printed_texts(&L, s);
     return L.errors ? -1 : 0;
 }
 

@@ -6,9 +6,10 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "base/tw_atomic.h"
 #include "base/tw_util.h"
 
-#define MANIFEST_FORMAT "tagwright-manifest"
+#define MANIFEST_FORMAT TW_LABEL_RECORD_FORMAT
 /* Version 1: the manifest earlier builds wrote beside each PDF; version 2: `registry export`
  * (adds removed revisions, approvals and study dates). */
 #define MANIFEST_VERSION_MAX 2

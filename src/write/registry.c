@@ -24,7 +24,7 @@
 
 /* PRAGMA application_id of a tagwright registry ("TWRG"): another program's SQLite database
  * is refused instead of having tables added to it. */
-#define REGISTRY_APP_ID 0x54575247
+#define REGISTRY_APP_ID TW_REGISTRY_APP_ID
 /* How long a reader or writer waits for SQLite's own locks, ms (a writer's flock queues whole
  * runs; this covers the moments a reader and a writer touch the same pages). */
 #define BUSY_TIMEOUT_MS 30000

@@ -64,13 +64,21 @@ fi
 fonts=$(pdffonts "$out" 2>/dev/null)
 contains "$fonts" "WinAnsi" "pdffonts: single-byte WinAnsi fonts for ASCII text"
 lacks "$fonts" "Identity-H" "pdffonts: no two-byte font when no text needs one"
-sed 's/^E2E-PNL-1,Lighting panel,/E2E-PNL-1,"Lighting panel Ω → 照明 — café",/' "$TW_DATA/core/small.csv" >"$TW_TMP/wide.csv"
+sed 's/^E2E-PNL-1,Lighting panel,/E2E-PNL-1,"Lighting panel Ω → φωτισμός — café",/' "$TW_DATA/core/small.csv" >"$TW_TMP/wide.csv"
 run labels "$TW_TMP/wide.csv" --out "$TW_TMP/wide.pdf" --date 2026-12-01
 expect_rc 0 "labels with text outside WinAnsiEncoding"
 fonts=$(pdffonts "$TW_TMP/wide.pdf" 2>/dev/null)
 contains "$fonts" "Identity-H" "pdffonts: the UTF-8 font is embedded when a text needs it"
-contains "$(page_text "$TW_TMP/wide.pdf" 1)" "Lighting panel Ω → 照明 — café" "pdftotext reads back the text outside WinAnsiEncoding"
+contains "$(page_text "$TW_TMP/wide.pdf" 1)" "Lighting panel Ω → φωτισμός — café" "pdftotext reads back the text outside WinAnsiEncoding"
 contains "$(page_text "$TW_TMP/wide.pdf" 2)" "Motor control centre, line 2" "the other labels read back as before"
+# CJK has no glyph in DejaVu Sans: refused (it would print as boxes), also as a draft.
+sed 's/^E2E-PNL-1,Lighting panel,/E2E-PNL-1,"Lighting panel 照明",/' "$TW_DATA/core/small.csv" >"$TW_TMP/cjk.csv"
+for draft in "" --draft; do
+    run labels "$TW_TMP/cjk.csv" --out "$TW_TMP/cjk.pdf" --date 2026-12-01 $draft
+    expect_rc 1 "labels $draft with a character the font has no glyph for is refused"
+    contains "$OUT$ERR" "description: character U+7167" "the message names the field and the character"
+    [ ! -e "$TW_TMP/cjk.pdf" ] && ok "no PDF written ($draft)" || fail "cjk.pdf written ($draft)"
+done
 
 # Lines that follow one another are shown with the next-line operator ('), not a move each;
 # pdftotext -bbox reads the caption lines back one leading (9 pt x 1.2 = 10.8 pt) apart.
