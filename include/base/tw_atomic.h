@@ -22,14 +22,27 @@ typedef struct {
     FILE *fp;
 } tw_atomic;
 
-/* Check that path can be an output: not a directory, not one of the inputs (same inode).
- * inputs is a NULL-terminated list (may be NULL). 0, or -1 with a message in err. */
+/* The "format" of a label record (write/manifest.c); an output never replaces such a file. */
+#define TW_LABEL_RECORD_FORMAT "tagwright-manifest"
+/* The SQLite application_id of a label registry (write/registry.c), "TWRG"; an output never
+ * replaces such a file either. */
+#define TW_REGISTRY_APP_ID 0x54575247
+
+/* Check that path can be an output: not a directory, not one of the inputs (same inode), not a
+ * label record, and, when it exists, a regular file (a symbolic link, FIFO or device node is
+ * refused, never replaced). inputs is a NULL-terminated list (may be NULL). 0, or -1 with a
+ * message in err. tw_atomic_open(), tw_atomic_tmp_path() and tw_atomic_publish() refuse a
+ * target that exists and is not a regular file as well, so no output replaces one. */
 int tw_output_path_ok(const char *path, const char *const *inputs, char *err, size_t errlen);
 
 /* The same for the n files a command was given, any of which may be NULL (an option left out;
  * a NULL in a NULL-terminated list would hide the files after it). */
 int tw_output_path_ok_n(const char *path, const char *const *inputs, size_t n, char *err,
                         size_t errlen);
+
+/* 0 when target does not exist or is a regular file; -1 with a message in err when it is a
+ * symbolic link, FIFO, device node, socket or directory, which no output may replace. */
+int tw_output_replaceable(const char *target, char *err, size_t errlen);
 
 /* Create the temporary file for target. 0, or -1 with a message in err. */
 int tw_atomic_open(tw_atomic *a, const char *target, char *err, size_t errlen);

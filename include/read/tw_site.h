@@ -40,6 +40,8 @@ typedef struct {
     double service_label_min_a; /* 0: not set; rules/tw_rules.h tw_service_label_min_a() */
     char *language;             /* "en", "es" or "en+es" */
     char *layout;               /* layout name or path; NULL: the default */
+    char *registry;             /* the site's label registry (relative to the settings file);
+                                   NULL: none named */
 } tw_site;
 
 /* Fill with the documented defaults. 0 on success, -1 when out of memory. */

@@ -52,8 +52,4 @@ int tw_label_doc_write(tw_label_doc *doc, const char *path, const char *target, 
 
 void tw_label_doc_free(tw_label_doc *doc);
 
-/* Directory of the TrueType fonts embedded in PDFs: $TAGWRIGHT_FONTS, else the DejaVu
- * directory Debian installs. */
-const char *tw_font_dir(void);
-
 #endif

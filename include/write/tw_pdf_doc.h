@@ -19,6 +19,7 @@
 
 #include <hpdf.h>
 
+#include "base/tw_fonts.h" /* tw_font_dir() */
 #include "write/tw_layout.h"
 #include "write/tw_qr.h"
 #include "rules/tw_rules.h"
@@ -159,8 +160,5 @@ void tw_draw_frame(HPDF_Page p, tw_box b, double lw, tw_rgb colour);
 /* A straight line of width lw. */
 void tw_draw_line(HPDF_Page p, double x0, double y0, double x1, double y1, double lw,
                   tw_rgb colour);
-
-/* Directory of the TrueType fonts (declared in tw_pdf.h as well). */
-const char *tw_font_dir(void);
 
 #endif

@@ -7,6 +7,7 @@
 #include <libgen.h>
 #include <signal.h>
 #include <stdlib.h>
+#include <stdint.h>
 #include <string.h>
 #include <sys/stat.h>
 #include <unistd.h>
@@ -120,6 +121,54 @@ static int new_output_ok(const char *path, const char *const *inputs, char *err,
     return rc;
 }
 
+/* An existing target that is not a regular file is never replaced: renaming over a symbolic
+ * link would drop the link (and whatever it pointed at would not get the output), and renaming
+ * over a FIFO or a device node - /dev/null, run as root - would replace the node itself. */
+int tw_output_replaceable(const char *target, char *err, size_t errlen)
+{
+    struct stat st;
+    if (lstat(target, &st) != 0)
+        return 0; /* nothing there yet; a missing directory is reported when it is used */
+    const char *what = S_ISLNK(st.st_mode)    ? "a symbolic link"
+                       : S_ISFIFO(st.st_mode) ? "a FIFO (named pipe)"
+                       : S_ISCHR(st.st_mode)  ? "a character device"
+                       : S_ISBLK(st.st_mode)  ? "a block device"
+                       : S_ISSOCK(st.st_mode) ? "a socket"
+                       : S_ISDIR(st.st_mode)  ? "a directory"
+                       : S_ISREG(st.st_mode)  ? NULL
+                                              : "not a regular file";
+    if (!what)
+        return 0;
+    snprintf(err, errlen, "%s: is %s; refusing to replace it (expected a regular file or a new "
+             "name)", target, what);
+    return -1;
+}
+
+/* 1 when the regular file at path begins as a label record does: a JSON object whose "format"
+ * is TW_LABEL_RECORD_FORMAT within its first bytes, or an SQLite database whose header carries
+ * the registry's application_id (big-endian at byte 68 of the SQLite file format). */
+static int is_label_record(const char *path)
+{
+    int fd = open(path, O_RDONLY | O_CLOEXEC | O_NONBLOCK);
+    if (fd < 0)
+        return 0;
+    char head[4096];
+    ssize_t n = read(fd, head, sizeof head - 1);
+    close(fd);
+    if (n <= 0)
+        return 0;
+    head[n] = '\0';
+    const unsigned char *u = (const unsigned char *)head;
+    if (n >= 72 && memcmp(head, "SQLite format 3", 16) == 0 &&
+        ((uint32_t)u[68] << 24 | (uint32_t)u[69] << 16 | (uint32_t)u[70] << 8 | u[71]) ==
+            TW_REGISTRY_APP_ID)
+        return 1;
+    const char *p = head;
+    while (*p == ' ' || *p == '\t' || *p == '\n' || *p == '\r')
+        p++;
+    return *p == '{' && strstr(p, "\"" TW_LABEL_RECORD_FORMAT "\"") != NULL;
+}
+
 int tw_output_path_ok(const char *path, const char *const *inputs, char *err, size_t errlen)
 {
     struct stat out;
@@ -127,6 +176,10 @@ int tw_output_path_ok(const char *path, const char *const *inputs, char *err, si
         snprintf(err, errlen, "output path is empty");
         return -1;
     }
+    struct stat link;
+    if (lstat(path, &link) == 0 && !S_ISDIR(link.st_mode) &&
+        tw_output_replaceable(path, err, errlen) != 0)
+        return -1;
     if (stat(path, &out) != 0) {
         if (errno != ENOENT) {
             snprintf(err, errlen, "%s: cannot use as an output: %s", path, strerror(errno));
@@ -145,6 +198,11 @@ int tw_output_path_ok(const char *path, const char *const *inputs, char *err, si
                      inputs[i]);
             return -1;
         }
+    }
+    if (is_label_record(path)) {
+        snprintf(err, errlen, "%s: is a record of printed labels; refusing to overwrite it "
+                 "(expected another output name)", path);
+        return -1;
     }
     return 0;
 }
@@ -243,6 +301,8 @@ int tw_output_path_ok_n(const char *path, const char *const *inputs, size_t n, c
 
 char *tw_atomic_tmp_path(const char *target, char *err, size_t errlen)
 {
+    if (tw_output_replaceable(target, err, errlen) != 0)
+        return NULL;
     /* Unnamed where possible: writers that open a path themselves (libharu) open this one,
      * and a run killed before the publish leaves nothing behind. */
     int ufd = owned_count < TW_MAX_PENDING ? open_unnamed(target) : -1;
@@ -307,6 +367,11 @@ int tw_atomic_publish(const char *tmp, const char *target, char *err, size_t err
         free(name);
         return rc;
     }
+    if (tw_output_replaceable(target, err, errlen) != 0) {
+        unlink(tmp);
+        tw_atomic_forget(tmp);
+        return -1;
+    }
     int fd = open(tmp, O_RDONLY);
     if (fd < 0 || fsync(fd) != 0) {
         snprintf(err, errlen, "%s: cannot flush to disk: %s", target, strerror(errno));
@@ -335,6 +400,8 @@ int tw_atomic_publish(const char *tmp, const char *target, char *err, size_t err
 int tw_atomic_open(tw_atomic *a, const char *target, char *err, size_t errlen)
 {
     memset(a, 0, sizeof *a);
+    if (tw_output_replaceable(target, err, errlen) != 0)
+        return -1;
     int fd = open_unnamed(target);
     if (fd >= 0) {
         a->target = tw_strdup(target);

@@ -26,20 +26,23 @@
 
 static const char reprint_usage[] =
     "usage: tagwright reprint RESULTS --bus ID (--clearing-time S | --incident-energy E)\n"
-    "                         [--site SITE.json] [--out label.pdf] [--manifest M.json]\n"
-    "                         [--reason TEXT] [--layout NAME|FILE] [--date YYYY-MM-DD]\n"
+    "                         [--site SITE.json] [--out label.pdf] [--manifest REG]\n"
+    "                         [--reason TEXT] [--approved-by NAME] [--layout NAME|FILE]\n"
+    "                         [--date YYYY-MM-DD]\n"
     "  --bus              the equipment ID whose label is revised\n"
     "  --clearing-time    new clearing time of its protective device, s: the energy of the\n"
     "                     governing scenario is rescaled by new time / study time\n"
     "  --incident-energy  new incident energy, cal/cm2, from a re-run study\n"
     "  --out              PDF to write (default label.pdf)\n"
-    "  --manifest         the record the label is posted in (default: beside the PDF); the\n"
-    "                     revision it holds for the bus is marked superseded\n"
+    "  --manifest         the label registry (default: site.json \"registry\"); the revision it\n"
+    "                     holds for the bus is marked superseded\n"
     "  --reason           why (e.g. a change order number); recorded with the new revision\n"
+    "  --approved-by      who approved a revision that lowers the hazard (refused without it;\n"
+    "                     needs --reason)\n"
     "A re-run study is the proper source of new values; rescaling is an estimate.\n";
 
 typedef struct {
-    const char *results, *site, *out, *manifest, *layout, *bus, *reason;
+    const char *results, *site, *out, *manifest, *layout, *bus, *reason, *approved_by;
     double clearing_time;       /* 0: not given */
     double incident_energy;     /* 0: not given */
     char date[11];
@@ -63,6 +66,7 @@ static int parse_args(int argc, char **argv, reprint_args *a)
         {"out", required_argument, NULL, 'o'},       {"manifest", required_argument, NULL, 'm'},
         {"reason", required_argument, NULL, 'r'},    {"layout", required_argument, NULL, 'l'},
         {"date", required_argument, NULL, 't'},      {"help", no_argument, NULL, 'h'},
+        {"approved-by", required_argument, NULL, 'A'},
         {NULL, 0, NULL, 0},
     };
     memset(a, 0, sizeof *a);
@@ -85,6 +89,7 @@ static int parse_args(int argc, char **argv, reprint_args *a)
         case 'o': a->out = optarg; break;
         case 'm': a->manifest = optarg; break;
         case 'r': a->reason = optarg; break;
+        case 'A': a->approved_by = optarg; break;
         case 'l': a->layout = optarg; break;
         case 't':
             if (tw_option_date(optarg, a->date) != 0)
@@ -103,7 +108,7 @@ static int parse_args(int argc, char **argv, reprint_args *a)
     if ((a->clearing_time > 0) == (a->incident_energy > 0))
         return tw_usage_error("reprint", "give exactly one of --clearing-time S (a setting "
                               "change) or --incident-energy E (from a re-run study)");
-    return 0;
+    return tw_approval_ok("reprint", a->approved_by, a->reason);
 }
 
 /* ---- the revised scenario ---------------------------------------------------------------- */
@@ -398,8 +403,11 @@ static int print_label(tw_study *st, const reprint_args *a, const tw_label *l, c
         tw_layout_free(&layout);
         return TW_EXIT_DATA;
     }
-    tw_print_opts po = {a->out, a->manifest, a->date, &layout, &st->site, reason};
+    char *registry = tw_registry_choose("reprint", a->manifest, &st->site, a->out);
+    tw_print_opts po = {a->out, registry, a->date, &layout, &st->site, reason, a->approved_by,
+                        NULL, 0};
     int rc = tw_print_labels(l, 1, &po, err, sizeof err);
+    free(registry);
     if (rc != TW_EXIT_OK)
         fprintf(stderr, "tagwright reprint: %s\n", err);
     tw_layout_free(&layout);
@@ -409,8 +417,8 @@ static int print_label(tw_study *st, const reprint_args *a, const tw_label *l, c
 static int run(tw_study *st, const reprint_args *a)
 {
     char err[1024] = "";
-    const char *inputs[] = {a->results, a->site, a->manifest, a->layout};
-    if (tw_output_path_ok_n(a->out, inputs, 4, err, sizeof err) != 0) {
+    const char *inputs[] = {a->results, a->site, a->manifest, a->layout, st->site.registry};
+    if (tw_output_path_ok_n(a->out, inputs, 5, err, sizeof err) != 0) {
         fprintf(stderr, "tagwright reprint: %s\n", err);
         return TW_EXIT_IO;
     }

@@ -5,6 +5,7 @@
  * path, and the load fails when any of them is an error.
  */
 #include "read/tw_job.h"
+#include "base/tw_fonts.h"
 #include "base/tw_text.h"
 
 #include <stdarg.h>
@@ -158,6 +159,14 @@ static int read_text(loader *L, const cJSON *v, const char *path, const char *fi
         else
             finding(L, TW_ERROR, path, field, "expected UTF-8 text without control characters%s",
                     kind == ONE_LINE ? " or line breaks" : " (line breaks are allowed)");
+        free(copy);
+        return -1;
+    }
+    uint32_t cp = 0;
+    tw_draw_problem p = tw_text_drawable(t, &cp);
+    if (p != TW_DRAW_OK) {
+        char why[512];
+        finding(L, TW_ERROR, path, field, "%s", tw_draw_problem_text(p, cp, why, sizeof why));
         free(copy);
         return -1;
     }

@@ -16,6 +16,7 @@
 #include <cjson/cJSON.h>
 
 #include "read/tw_results.h"
+#include "base/tw_fonts.h"
 #include "base/tw_util.h"
 #include "read/tw_json.h"
 
@@ -67,6 +68,7 @@ void tw_site_free(tw_site *s)
     free_strings(s->cautions, s->caution_count);
     free(s->language);
     free(s->layout);
+    free(s->registry);
     memset(s, 0, sizeof *s);
 }
 
@@ -267,6 +269,11 @@ static void key_layout(loader *L, const cJSON *v, tw_site *s)
     read_text(L, v, "layout", "layout", 0, &s->layout);
 }
 
+static void key_registry(loader *L, const cJSON *v, tw_site *s)
+{
+    read_text(L, v, "registry", "registry", 0, &s->registry);
+}
+
 static void key_danger_above(loader *L, const cJSON *v, tw_site *s)
 {
     read_positive(L, v, "danger_above_cal_cm2", "danger_above_cal_cm2", TW_MAX_CAL,
@@ -407,6 +414,7 @@ static const struct {
     {"service_label_min_a", key_service_min},
     {"language", key_language},
     {"layout", key_layout},
+    {"registry", key_registry},
 };
 
 static void apply(loader *L, const cJSON *root, tw_site *s)
@@ -421,6 +429,31 @@ static void apply(loader *L, const cJSON *root, tw_site *s)
             finding(L, TW_WARNING, key, key, "unknown setting, ignored (see docs/site-settings.md)");
         else
             settings_table[i].read(L, item, s);
+    }
+}
+
+/* Every site text a label or permit prints must be drawable as it reads (tw_fonts.h). */
+static void check_drawable(loader *L, const char *path, const char *field, const char *text)
+{
+    uint32_t cp = 0;
+    tw_draw_problem p = text ? tw_text_drawable(text, &cp) : TW_DRAW_OK;
+    if (p != TW_DRAW_OK) {
+        char why[512];
+        finding(L, TW_ERROR, path, field, "%s", tw_draw_problem_text(p, cp, why, sizeof why));
+    }
+}
+
+static void check_printed_texts(loader *L, const tw_site *s)
+{
+    char path[64];
+    check_drawable(L, "site_name", "site_name", s->site_name);
+    for (size_t i = 0; i < s->caution_count; i++) {
+        snprintf(path, sizeof path, "cautions[%zu]", i);
+        check_drawable(L, path, "cautions", s->cautions[i]);
+    }
+    for (size_t i = 0; i < s->ppe_level_count; i++) {
+        snprintf(path, sizeof path, "ppe_levels[%zu].name", i);
+        check_drawable(L, path, "name", s->ppe_levels[i].name);
     }
 }
 
@@ -439,6 +472,7 @@ int tw_site_load_mem(const char *name, const char *data, size_t len, tw_site *s,
     if (!root)
         return -1;
     apply(&L, root, s);
+    check_printed_texts(&L, s);
     tw_json_free(root, &spec);
     return L.errors ? -1 : 0;
 }
@@ -457,5 +491,18 @@ int tw_site_load(const char *path, tw_site *s, tw_diags *d)
     }
     int rc = tw_site_load_mem(path, data, len, s, d);
     free(data);
+    /* A relative registry path is relative to the settings file, so that every command finds
+     * the same registry wherever it is run from. */
+    const char *slash = strrchr(path, '/');
+    if (s->registry && s->registry[0] != '/' && slash) {
+        char *full = tw_asprintf("%.*s/%s", (int)(slash - path), path, s->registry);
+        if (!full) {
+            tw_source src = {path, 0, "registry"};
+            tw_diag_add(d, TW_ERROR, &src, NULL, "registry", "out of memory");
+            return -1;
+        }
+        free(s->registry);
+        s->registry = full;
+    }
     return rc;
 }

@@ -8,13 +8,16 @@
 #include "rules/tw_validate.h"
 
 #include <math.h>
+#include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
 #include "rules/tw_analysis.h"
 #include "base/tw_date.h"
+#include "base/tw_fonts.h"
 #include "base/tw_map.h"
+#include "base/tw_unicode.h"
 #include "rules/tw_rules.h"
 #include "base/tw_util.h"
 
@@ -439,6 +442,150 @@ static void check_voltage_agreement(const check_ctx *ctx, const tw_bus *b)
     }
 }
 
+/* A bus's rows come from one study revision: a label shows one study ID and date, and its review
+ * date (NFPA 70E 130.5(G), five years) follows from that date, so rows of different studies
+ * would give a label and a `due` listing that disagree about which study governs. */
+static void check_one_study(const check_ctx *ctx, const tw_bus *b)
+{
+    const tw_row *ref = NULL;
+    for (size_t i = 0; i < b->count; i++) {
+        tw_row *r = b->rows[i];
+        if (!ref) {
+            ref = r;
+            continue;
+        }
+        static const tw_field fields[] = {TW_F_STUDY_ID, TW_F_STUDY_DATE};
+        for (size_t k = 0; k < 2; k++) {
+            tw_field f = fields[k];
+            const char *a = tw_row_has(r, f) ? r->text[f] : "", *o = tw_row_has(ref, f) ? ref->text[f] : "";
+            if (strcmp(a ? a : "", o ? o : "") == 0)
+                continue;
+            char at[64];
+            where(ref, at, sizeof at);
+            tw_row_diag(ctx->d, r, TW_ERROR, f, NULL,
+                        "'%s' here, '%s' at %s; expected every scenario of a bus from one study "
+                        "revision (its label and its review date name one study)",
+                        a ? a : "", o ? o : "", at);
+        }
+    }
+}
+
+/* ---- what a label can show ----------------------------------------------------------------- */
+
+/* An ID is read, compared and typed by people: a character they cannot see (a no-break or
+ * zero-width space, a byte order mark, a bidirectional control) makes two IDs that look the same
+ * name two buses, and `--bus` pick the wrong one. */
+static void check_id_characters(const check_ctx *ctx, tw_row *r)
+{
+    static const tw_field ids[] = {TW_F_EQUIPMENT_ID, TW_F_STUDY_ID};
+    for (size_t i = 0; i < sizeof ids / sizeof ids[0]; i++) {
+        if (!tw_row_has(r, ids[i]))
+            continue;
+        uint32_t cp = tw_id_hidden_char(r->text[ids[i]]);
+        if (!cp)
+            continue;
+        char ch[160];
+        tw_char_describe(cp, ch, sizeof ch);
+        tw_row_diag(ctx->d, r, TW_ERROR, ids[i], NULL,
+                    "contains %s, an invisible or formatting character; expected an ID of "
+                    "visible characters and plain spaces only", ch);
+    }
+}
+
+/* The row's texts that a label prints: each must be drawable exactly as it reads (tw_fonts.h),
+ * or the label would show boxes, drop characters or reverse them. */
+static void check_drawable(const check_ctx *ctx, tw_row *r)
+{
+    static const tw_field printed[] = {TW_F_EQUIPMENT_ID, TW_F_DESCRIPTION, TW_F_LOCATION,
+                                       TW_F_STUDY_ID, TW_F_SCENARIO};
+    for (size_t i = 0; i < sizeof printed / sizeof printed[0]; i++) {
+        uint32_t cp = 0;
+        tw_draw_problem p;
+        if (!tw_row_has(r, printed[i]) ||
+            (p = tw_text_drawable(r->text[printed[i]], &cp)) == TW_DRAW_OK)
+            continue;
+        if ((printed[i] == TW_F_EQUIPMENT_ID || printed[i] == TW_F_STUDY_ID) &&
+            tw_id_hidden_char(r->text[printed[i]]))
+            continue; /* reported by check_id_characters */
+        char why[512];
+        tw_row_diag(ctx->d, r, TW_ERROR, printed[i], NULL, "%s",
+                    tw_draw_problem_text(p, cp, why, sizeof why));
+    }
+}
+
+/* Report that b (at row r) and the bus first seen at row first share a key. */
+static void report_lookalike(const check_ctx *ctx, tw_row *r, const tw_row *other)
+{
+    char at[64];
+    where(other, at, sizeof at);
+    tw_row_diag(ctx->d, r, TW_ERROR, TW_F_EQUIPMENT_ID, NULL,
+                "'%s' and '%s' (%s) read as the same ID (compared after Unicode NFKC case "
+                "folding, without invisible characters or extra spaces); expected one spelling "
+                "per bus",
+                r->text[TW_F_EQUIPMENT_ID], other->text[TW_F_EQUIPMENT_ID], at);
+}
+
+/* The key of bus i's ID into key (TW_ID_KEY_MAX bytes), hashed (FNV-1a); -1 when it cannot
+ * be made. */
+static int id_key_hash(const tw_bus_set *s, size_t i, char *key, uint32_t *hash)
+{
+    long n = tw_id_key(s->buses[i].equipment_id, key, TW_ID_KEY_MAX);
+    uint32_t h = 2166136261u;
+    for (long k = 0; k < n; k++)
+        h = (h ^ (unsigned char)key[k]) * 16777619u;
+    *hash = h;
+    return n < 0 ? -1 : 0;
+}
+
+/* Two buses whose IDs differ only in case, compatibility forms (full-width letters,
+ * superscripts, ligatures), invisible characters or spacing would print as two labels for
+ * what a worker reads as one piece of equipment. Both are reported, each naming the other's
+ * line. A table of key hashes (8 bytes a bus) rather than of keys: the keys are made again
+ * only when two hashes meet. */
+static void check_lookalike_ids(const check_ctx *ctx)
+{
+    const tw_bus_set *s = ctx->buses;
+    if (!s || s->count < 2 || s->count > UINT32_MAX / 4)
+        return;
+    size_t cap = 16;
+    while (cap < 2 * s->count)
+        cap *= 2;
+    struct slot {
+        uint32_t hash, bus; /* bus + 1; 0: empty */
+    } *table = calloc(cap, sizeof *table);
+    char *key = malloc(2 * TW_ID_KEY_MAX), *other = key + TW_ID_KEY_MAX;
+    if (!table || !key) {
+        tw_row_diag(ctx->d, s->buses[0].rows[0], TW_ERROR, TW_F_EQUIPMENT_ID, NULL,
+                    "out of memory while comparing equipment IDs");
+        goto done;
+    }
+    for (size_t i = 0; i < s->count; i++) {
+        uint32_t h, h2;
+        if (s->buses[i].count == 0)
+            continue;
+        if (id_key_hash(s, i, key, &h) != 0) {
+            tw_row_diag(ctx->d, s->buses[i].rows[0], TW_ERROR, TW_F_EQUIPMENT_ID, NULL,
+                        "could not be compared with the other IDs (Unicode normalization "
+                        "failed); expected an ID of up to %d bytes", TW_MAX_ID_BYTES);
+            continue;
+        }
+        size_t at = h & (cap - 1);
+        for (; table[at].bus; at = (at + 1) & (cap - 1)) {
+            size_t j = table[at].bus - 1;
+            if (table[at].hash != h || id_key_hash(s, j, other, &h2) != 0 || strcmp(key, other))
+                continue;
+            report_lookalike(ctx, s->buses[i].rows[0], s->buses[j].rows[0]);
+            report_lookalike(ctx, s->buses[j].rows[0], s->buses[i].rows[0]);
+            break;
+        }
+        if (!table[at].bus)
+            table[at] = (struct slot){h, (uint32_t)(i + 1)};
+    }
+done:
+    free(table);
+    free(key);
+}
+
 /* ---- the table --------------------------------------------------------------------------- */
 
 static const tw_check checks[] = {
@@ -454,8 +601,11 @@ static const tw_check checks[] = {
     {"ieee1584-range", check_ieee1584_range, NULL},
     {"arcing-below-bolted", check_arcing_below_bolted, NULL},
     {"clearing-time-2s", check_clearing_time, NULL},
+    {"id-characters", check_id_characters, NULL},
+    {"drawable-text", check_drawable, NULL},
     {"one-row-per-scenario", NULL, check_duplicate_ids},
     {"voltage-across-scenarios", NULL, check_voltage_agreement},
+    {"one-study-per-bus", NULL, check_one_study},
 };
 
 size_t tw_validate(tw_results *r, const tw_bus_set *buses, const tw_site *site, tw_diags *d)
@@ -471,5 +621,6 @@ size_t tw_validate(tw_results *r, const tw_bus_set *buses, const tw_site *site, 
         for (size_t c = 0; c < n; c++)
             if (checks[c].bus)
                 checks[c].bus(&ctx, &buses->buses[i]);
+    check_lookalike_ids(&ctx); /* "one-spelling-per-id": across all buses at once */
     return d->errors - before;
 }

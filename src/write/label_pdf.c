@@ -3,9 +3,11 @@
  * Each label is planned first (every text box fitted, the QR code encoded and sized) and drawn
  * only when the whole plan fits, so a refused label leaves nothing on the page. */
 #include "write/tw_label_pdf.h"
+#include "base/tw_fonts.h"
 #include "base/tw_text.h"
 
 #include <math.h>
+#include <stdarg.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -77,16 +79,43 @@ static int hash_ok(const char *h)
     return h[64] == '\0';
 }
 
-/* Content rules a posting label must meet; a draft only needs printable text. */
+/* 1 with "PREFIX: what is wrong" in err when text (may be NULL) cannot be drawn as it reads
+ * (tw_fonts.h); a draft is refused for it too, since it would print something else. */
+static int undrawable(const char *text, char *err, size_t errlen, const char *fmt, ...)
+#if defined(__GNUC__)
+    __attribute__((format(printf, 4, 5)))
+#endif
+    ;
+
+static int undrawable(const char *text, char *err, size_t errlen, const char *fmt, ...)
+{
+    uint32_t cp = 0;
+    tw_draw_problem p = text ? tw_text_drawable(text, &cp) : TW_DRAW_OK;
+    if (p == TW_DRAW_OK)
+        return 0;
+    char prefix[256], why[512];
+    va_list ap;
+    va_start(ap, fmt);
+    vsnprintf(prefix, sizeof prefix, fmt, ap);
+    va_end(ap);
+    snprintf(err, errlen, "%s: %s", prefix, tw_draw_problem_text(p, cp, why, sizeof why));
+    return 1;
+}
+
+/* Content rules a posting label must meet; a draft only needs printable, drawable text. */
 static int check_label(const tw_label *l, const char *payload, char *err, size_t errlen)
 {
     const char *id = label_id(l);
-    for (int k = 0; k < TW_L_COUNT; k++)
+    for (int k = 0; k < TW_L_COUNT; k++) {
         if (l->value[k] && !tw_text_ok(l->value[k])) {
             snprintf(err, errlen, "label %s: %s is not printable UTF-8 text", id,
                      tw_label_key_name((tw_label_key)k));
             return -1;
         }
+        if (undrawable(l->value[k], err, errlen, "label %s: %s", id,
+                       tw_label_key_name((tw_label_key)k)))
+            return -1;
+    }
     if (l->signal != TW_SIGNAL_WARNING && l->signal != TW_SIGNAL_DANGER) {
         snprintf(err, errlen, "label %s: unknown signal word", id);
         return -1;
@@ -241,6 +270,9 @@ static int fit_pair(const tw_pdf_doc *d, block *b, row *r, double w, double cap_
     }
     r->n = tw_wrap(f, r->pt, r->text, avail, r->lines, ROW_MAX_LINES);
     double value_h = r->n * r->pt * TW_LEADING, cap_h = r->cap_n * s * TW_LEADING;
+    if (!stacked) /* the value's first baseline is level with the caption's (draw_row), so a
+                   * value set smaller than its caption starts lower by the difference */
+        value_h += fmax(0, tw_baseline_drop(d->regular, s) - tw_baseline_drop(f, r->pt));
     r->h = r->space + (stacked ? cap_h + value_h : fmax(value_h, cap_h));
     return 0;
 }
@@ -377,6 +409,18 @@ static void set_regions(block *b, const tw_layout *lay, tw_box study, int column
         b->regions[b->nregions++] = study;
 }
 
+/* The first row that reaches below the bottom of its region after fit_block_at(), named for
+ * messages. */
+static const char *overflowing(const block *b)
+{
+    for (int i = 0; i < b->n; i++) {
+        const row *r = &b->rows[i];
+        if (r->y + r->h > b->regions[r->region].h + 1e-6)
+            return r->what;
+    }
+    return b->n ? b->rows[b->n - 1].what : "the last row";
+}
+
 /* Shrink in 0.5 pt steps from the layout's body size to its minimum until the block fits, in
  * one column; only when one column does not hold it even at the minimum, in two (body.columns
  * is the most it may use). Else a message naming the label, the field and the region. */
@@ -433,8 +477,9 @@ static int fit_block(const tw_pdf_doc *d, block *b, const tw_layout *lay, tw_box
                  "text for %.0f pt of lines, which break only between words)", id,
                  b->failed->what, region, min, b->need, b->have);
     else
-        snprintf(err, errlen, "label %s: the body and study regions overflow at %g pt (need "
-                 "%.0f pt more height: %.1f mm short)", id, min, b->over, b->over * 25.4 / 72);
+        snprintf(err, errlen, "label %s: the body and study regions overflow at %g pt from %s "
+                 "on (need %.0f pt more height: %.1f mm short)", id, min, overflowing(b),
+                 b->over, b->over * 25.4 / 72);
     return -1;
 }
 
@@ -732,6 +777,106 @@ static double qr_drawn_height(const tw_layout *lay, const plan *pl)
     return h + pl->hash_n * pl->hash_pt * TW_LEADING;
 }
 
+/* ---- geometry: nothing drawn over anything else ---------------------------------------- */
+
+/* Every text a label draws, as the box its lines take, with the region it must stay in. */
+#define GEOM_MAX (2 * BLOCK_MAX_ROWS + 3)
+/* Boxes that only touch (adjacent lines, a row below the one above) do not overlap. */
+#define GEOM_EPS 0.01
+
+typedef struct {
+    tw_box box, within;
+    const char *what;
+} placed_text;
+
+typedef struct {
+    placed_text t[GEOM_MAX];
+    int n;
+} geometry;
+
+static void geom_add(geometry *g, tw_box box, tw_box within, const char *what)
+{
+    if (g->n < GEOM_MAX && box.h > 0 && box.w > 0)
+        g->t[g->n++] = (placed_text){box, within, what};
+}
+
+static int box_inside(tw_box a, tw_box outer)
+{
+    return a.x >= outer.x - GEOM_EPS && a.y >= outer.y - GEOM_EPS &&
+           a.x + a.w <= outer.x + outer.w + GEOM_EPS && a.y + a.h <= outer.y + outer.h + GEOM_EPS;
+}
+
+static int boxes_overlap(tw_box a, tw_box b)
+{
+    return fmin(a.x + a.w, b.x + b.w) - fmax(a.x, b.x) > GEOM_EPS &&
+           fmin(a.y + a.h, b.y + b.h) - fmax(a.y, b.y) > GEOM_EPS;
+}
+
+/* The boxes of one row as draw_row() places them (top: the top of its text). */
+static void geom_row(geometry *g, const tw_pdf_doc *d, const block *b, const row *r)
+{
+    tw_box reg = b->regions[r->region];
+    double s = b->pt, x = reg.x, w = reg.w, top = reg.y + reg.h - r->y - r->space;
+    double value_h = r->n * r->pt * TW_LEADING, cap_h = r->cap_n * s * TW_LEADING;
+    if (r->kind == ROW_PAIR && r->stacked) {
+        geom_add(g, (tw_box){x, top - cap_h, w, cap_h}, reg, r->what);
+        geom_add(g, (tw_box){x, top - cap_h - value_h, w, value_h}, reg, r->what);
+    } else if (r->kind == ROW_PAIR) {
+        tw_font *f = r->bold ? d->bold : d->regular;
+        double vtop = top - tw_baseline_drop(d->regular, s) + tw_baseline_drop(f, r->pt);
+        geom_add(g, (tw_box){x, top - cap_h, r->cap_w, cap_h}, reg, r->what);
+        geom_add(g, (tw_box){x + r->cap_w, vtop - value_h, w - r->cap_w, value_h}, reg, r->what);
+    } else if (r->kind == ROW_BOX) {
+        double bh = r->h - 2 * r->space;
+        geom_add(g, (tw_box){x + 0.4 * s, top - bh, w - 0.8 * s, bh - 0.4 * s}, reg, r->what);
+    } else {
+        geom_add(g, (tw_box){x, top - value_h, w, value_h}, reg, r->what);
+    }
+}
+
+/* Check the planned label before it is drawn: every text inside the label and its own region,
+ * and no two texts overlapping (the draft watermark, drawn across on purpose, is not planned
+ * here). 0, or -1 with a message naming both texts. */
+static int check_geometry(const tw_label_doc *doc, const plan *pl, const char *id, char *err,
+                          size_t errlen)
+{
+    const tw_layout *lay = &doc->layout;
+    tw_box label = {0, 0, lay->label_w, lay->label_h};
+    geometry *g = malloc(sizeof *g);
+    if (!g) {
+        snprintf(err, errlen, "label %s: out of memory", id);
+        return -1;
+    }
+    g->n = 0;
+    geom_add(g, lay->header, label, "signal word (header)");
+    for (int i = 0; i < pl->body.n; i++)
+        geom_row(g, &doc->pdf, &pl->body, &pl->body.rows[i]);
+    double qr_h = qr_drawn_height(lay, pl);
+    geom_add(g, (tw_box){lay->qr.x, lay->qr.y + lay->qr.h - qr_h, lay->qr.w, qr_h}, label,
+             "QR code and content hash");
+    double foot_h = doc->footer_n * doc->footer_pt * TW_LEADING, foot_top = lay->footer.y +
+                    lay->footer.h - 2;
+    geom_add(g, (tw_box){lay->footer.x, foot_top - foot_h, lay->footer.w, foot_h}, lay->footer,
+             "cautions (footer)");
+    int rc = 0;
+    for (int i = 0; i < g->n && rc == 0; i++) {
+        const placed_text *a = &g->t[i];
+        if (!box_inside(a->box, a->within) || !box_inside(a->box, label)) {
+            snprintf(err, errlen, "label %s: %s would be drawn outside its region of the label; "
+                     "shorten the text or choose a larger layout", id, a->what);
+            rc = -1;
+        }
+        for (int k = i + 1; k < g->n && rc == 0; k++)
+            if (boxes_overlap(a->box, g->t[k].box)) {
+                snprintf(err, errlen, "label %s: %s would be drawn over %s; shorten the text or "
+                         "choose a larger layout", id, g->t[k].what, a->what);
+                rc = -1;
+            }
+    }
+    free(g);
+    return rc;
+}
+
 static int plan_label(const tw_label_doc *doc, plan *pl, const tw_label *l, const char *payload,
                       char *err, size_t errlen)
 {
@@ -760,7 +905,9 @@ static int plan_label(const tw_label_doc *doc, plan *pl, const tw_label *l, cons
     plan_body(doc, pl, &pl->body, l);
     pl->body.study_from = pl->body.n;
     plan_study(doc, pl, &pl->body, l);
-    return fit_block(&doc->pdf, &pl->body, lay, study, id, err, errlen);
+    if (fit_block(&doc->pdf, &pl->body, lay, study, id, err, errlen) != 0)
+        return -1;
+    return check_geometry(doc, pl, id, err, errlen);
 }
 
 static void draw_qr_box(HPDF_Page p, const tw_label_doc *doc, const plan *pl)
@@ -842,6 +989,9 @@ static int grow_footer(tw_label_doc *doc, int n, char *err, size_t errlen)
     if (!lay->qr_side) {
         lay->qr.y += grow;
         lay->study.y += grow;
+    } else if (lay->study.w > 0) { /* the study box under the QR box gives up the room too */
+        lay->study.y += grow;
+        lay->study.h = fmax(0, lay->study.h - grow);
     }
     doc->footer_pt = pt;
     return 0;
@@ -859,6 +1009,8 @@ static int plan_footer(tw_label_doc *doc, const tw_site *site, char *err, size_t
             snprintf(err, errlen, "site caution %zu is not printable UTF-8 text", i + 1);
             return -1;
         }
+        if (undrawable(c, err, errlen, "site caution %zu", i + 1))
+            return -1;
         len += strlen(c) + 1;
     }
     if (!(doc->footer = malloc(len)))

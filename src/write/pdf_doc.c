@@ -9,11 +9,9 @@
 
 #include "base/tw_atomic.h"
 #include "base/tw_date.h"
+#include "base/tw_fonts.h"
 #include "base/tw_util.h"
 
-#define TW_DEFAULT_FONT_DIR "/usr/share/fonts/truetype/dejavu"
-#define TW_FONT_REGULAR "DejaVuSans.ttf"
-#define TW_FONT_BOLD "DejaVuSans-Bold.ttf"
 
 /* From memory; verify against ANSI Z535.1 (see tw_pdf_doc.h). */
 const tw_rgb TW_SAFETY_RED = {200 / 255.0, 16 / 255.0, 46 / 255.0};
@@ -21,12 +19,6 @@ const tw_rgb TW_SAFETY_ORANGE = {255 / 255.0, 130 / 255.0, 0};
 const tw_rgb TW_BLACK = {0, 0, 0};
 const tw_rgb TW_WHITE = {1, 1, 1};
 const tw_rgb TW_GREY = {0.45, 0.45, 0.45};
-
-const char *tw_font_dir(void)
-{
-    const char *env = getenv("TAGWRIGHT_FONTS");
-    return env && *env ? env : TW_DEFAULT_FONT_DIR;
-}
 
 /* ---- documents ---------------------------------------------------------------------------- */
 

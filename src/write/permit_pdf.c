@@ -7,6 +7,7 @@
  * field, a checklist item, a signature block) are kept on one page.
  */
 #include "write/tw_permit_pdf.h"
+#include "base/tw_fonts.h"
 #include "base/tw_text.h"
 
 #include <math.h>
@@ -875,6 +876,32 @@ static int check_texts(const tw_permit *in, char *err, size_t errlen)
                      tw_label_key_name((tw_label_key)k));
             return -1;
         }
+    const char *named[1 + TW_L_COUNT];
+    size_t count = 0;
+    named[count++] = s->site_name;
+    for (int k = 0; k < TW_L_COUNT; k++)
+        named[count++] = in->label->value[k];
+    for (size_t i = 0; i < count; i++) {
+        uint32_t cp = 0;
+        tw_draw_problem p = named[i] ? tw_text_drawable(named[i], &cp) : TW_DRAW_OK;
+        if (p != TW_DRAW_OK) {
+            char why[512];
+            snprintf(err, errlen, "%s: %s",
+                     i == 0 ? "the site name" : tw_label_key_name((tw_label_key)(i - 1)),
+                     tw_draw_problem_text(p, cp, why, sizeof why));
+            return -1;
+        }
+    }
+    for (size_t i = 0; i < s->caution_count; i++) {
+        uint32_t cp = 0;
+        tw_draw_problem p = s->cautions[i] ? tw_text_drawable(s->cautions[i], &cp) : TW_DRAW_OK;
+        if (p != TW_DRAW_OK) {
+            char why[512];
+            snprintf(err, errlen, "site caution %zu: %s", i + 1,
+                     tw_draw_problem_text(p, cp, why, sizeof why));
+            return -1;
+        }
+    }
     if (!in->label->value[TW_L_EQUIPMENT_ID]) {
         snprintf(err, errlen, "the label has no equipment ID");
         return -1;

@@ -15,6 +15,9 @@ out="$TW_TMP/identity"
 date=2026-12-01
 mkdir -p "$out/permits"
 
+# Each labels run keeps its own registry: the first one holds the labels posted for the
+# permit, which must show those very values.
+
 # Spanish and English + Spanish labels, from the example site with another language.
 python3 - "$jobs/site.json" "$out" <<'PY'
 import json, sys
@@ -30,23 +33,23 @@ produce() { # produce WHAT ARGS...: runs tagwright, which must exit 0
     expect_rc 0 "$what"
 }
 produce "labels for every bus of the example plant" labels "$jobs/results.csv" \
-    --site "$jobs/site.json" --out "$out/labels.pdf"
+    --site "$jobs/site.json" --out "$out/labels.pdf" --manifest "$out/posted.registry"
 produce "labels from the JSON results" labels "$jobs/results.json" \
-    --site "$jobs/site.json" --out "$out/labels-json.pdf"
+    --site "$jobs/site.json" --out "$out/labels-json.pdf" --manifest "$out/labels-json.registry"
 produce "labels in Spanish on the 4x6 layout" labels "$jobs/results.csv" \
-    --site "$out/site-es.json" --layout 4x6 --out "$out/labels-es.pdf"
+    --site "$out/site-es.json" --layout 4x6 --out "$out/labels-es.pdf" --manifest "$out/labels-es.registry"
 produce "labels in English and Spanish" labels "$jobs/results.csv" \
-    --site "$out/site-en+es.json" --out "$out/labels-en+es.pdf"
+    --site "$out/site-en+es.json" --out "$out/labels-en+es.pdf" --manifest "$out/labels-en+es.registry"
 produce "metric labels on the 105x74mm layout" labels "$jobs/results.csv" \
-    --site "$out/site-metric.json" --layout 105x74mm --out "$out/labels-metric.pdf"
+    --site "$out/site-metric.json" --layout 105x74mm --out "$out/labels-metric.pdf" --manifest "$out/labels-metric.registry"
 for layout in "$TW_ROOT"/layouts/*.json; do
     name=$(basename "$layout" .json)
     produce "the service switchgear on layout $name" labels "$jobs/results.csv" \
         --site "$jobs/site.json" --layout "$name" --bus QB-MSS-SG01 \
-        --out "$out/layout-$name.pdf"
+        --out "$out/layout-$name.pdf" --manifest "$out/layout-$name.registry"
 done
-produce "the permit for one job, beside the manifest" permit "$jobs/results.csv" \
-    --job "$jobs/job.json" --site "$jobs/site.json" --manifest "$out/labels.manifest.json" \
+produce "the permit for one job, beside the registry" permit "$jobs/results.csv" \
+    --job "$jobs/job.json" --site "$jobs/site.json" --manifest "$out/posted.registry" \
     --out "$out/permit.pdf"
 produce "permits for a batch of jobs" permit "$jobs/results.csv" --job "$jobs/jobs.json" \
     --site "$jobs/site.json" --out "$out/permits"

@@ -5,7 +5,9 @@ out="$TW_TMP/labels.pdf"
 run labels "$TW_DATA/core/small.csv" --out "$out" --date 2026-12-01
 expect_rc 0 "labels for a clean study"
 check "the PDF exists" test -s "$out"
-check "the manifest is written beside the PDF" test -s "$TW_TMP/labels.manifest.json"
+check "without a site registry the labels are recorded beside the PDF" test -s "$TW_TMP/tagwright-registry.db"
+contains "$ERR" "recorded in $TW_TMP/tagwright-registry.db" "the run says where the history went"
+exported "$TW_TMP/tagwright-registry.db" >/dev/null
 check "qpdf --check passes" qpdf --check "$out"
 info=$(pdfinfo "$out" | tr -s " ")
 contains "$info" "Pages: 4" "one page per bus (4 buses, 5 scenario rows)"
@@ -44,14 +46,14 @@ contains "$p4" "Class 2" "glove class for 13.8 kV"
 
 if has_tool zbarimg && has_tool pdftoppm; then
     payload=$(qr_of "$out" 2)
-    hash=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["content_hash"])' "$TW_TMP/labels.manifest.json")
-    mpay=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["payload"])' "$TW_TMP/labels.manifest.json")
-    contains "$payload" "${hash^^}" "QR decoded by zbarimg carries the manifest's content hash (in capitals)"
+    hash=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["content_hash"])' "$TW_TMP/tagwright-registry.db.json")
+    mpay=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["payload"])' "$TW_TMP/tagwright-registry.db.json")
+    contains "$payload" "${hash^^}" "QR decoded by zbarimg carries the registry's content hash (in capitals)"
     contains "$payload" "HTTPS://RECORDS.INVALID/E2E-STUDY/E2E-MCC-1/1/" "default record link: study, equipment, revision"
-    [ "$payload" = "$mpay" ] && ok "QR payload equals the manifest's payload" || fail "QR payload '$payload' != '$mpay'"
-    # the hash is the SHA-256 of the canonical content recorded in the manifest
-    content_hash=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["content"], end="")' "$TW_TMP/labels.manifest.json" | sha256sum | cut -d" " -f1)
-    [ "$content_hash" = "$hash" ] && ok "content hash = sha256sum of the canonical form" || fail "sha256sum gives $content_hash, manifest says $hash"
+    [ "$payload" = "$mpay" ] && ok "QR payload equals the registry's payload" || fail "QR payload '$payload' != '$mpay'"
+    # the hash is the SHA-256 of the canonical content recorded in the registry
+    content_hash=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["content"], end="")' "$TW_TMP/tagwright-registry.db.json" | sha256sum | cut -d" " -f1)
+    [ "$content_hash" = "$hash" ] && ok "content hash = sha256sum of the canonical form" || fail "sha256sum gives $content_hash, registry says $hash"
 else
     fail "zbarimg/pdftoppm not installed"
 fi
@@ -62,13 +64,21 @@ fi
 fonts=$(pdffonts "$out" 2>/dev/null)
 contains "$fonts" "WinAnsi" "pdffonts: single-byte WinAnsi fonts for ASCII text"
 lacks "$fonts" "Identity-H" "pdffonts: no two-byte font when no text needs one"
-sed 's/^E2E-PNL-1,Lighting panel,/E2E-PNL-1,"Lighting panel Ω → 照明 — café",/' "$TW_DATA/core/small.csv" >"$TW_TMP/wide.csv"
+sed 's/^E2E-PNL-1,Lighting panel,/E2E-PNL-1,"Lighting panel Ω → φωτισμός — café",/' "$TW_DATA/core/small.csv" >"$TW_TMP/wide.csv"
 run labels "$TW_TMP/wide.csv" --out "$TW_TMP/wide.pdf" --date 2026-12-01
 expect_rc 0 "labels with text outside WinAnsiEncoding"
 fonts=$(pdffonts "$TW_TMP/wide.pdf" 2>/dev/null)
 contains "$fonts" "Identity-H" "pdffonts: the UTF-8 font is embedded when a text needs it"
-contains "$(page_text "$TW_TMP/wide.pdf" 1)" "Lighting panel Ω → 照明 — café" "pdftotext reads back the text outside WinAnsiEncoding"
+contains "$(page_text "$TW_TMP/wide.pdf" 1)" "Lighting panel Ω → φωτισμός — café" "pdftotext reads back the text outside WinAnsiEncoding"
 contains "$(page_text "$TW_TMP/wide.pdf" 2)" "Motor control centre, line 2" "the other labels read back as before"
+# CJK has no glyph in DejaVu Sans: refused (it would print as boxes), also as a draft.
+sed 's/^E2E-PNL-1,Lighting panel,/E2E-PNL-1,"Lighting panel 照明",/' "$TW_DATA/core/small.csv" >"$TW_TMP/cjk.csv"
+for draft in "" --draft; do
+    run labels "$TW_TMP/cjk.csv" --out "$TW_TMP/cjk.pdf" --date 2026-12-01 $draft
+    expect_rc 1 "labels $draft with a character the font has no glyph for is refused"
+    contains "$OUT$ERR" "description: character U+7167" "the message names the field and the character"
+    [ ! -e "$TW_TMP/cjk.pdf" ] && ok "no PDF written ($draft)" || fail "cjk.pdf written ($draft)"
+done
 
 # Lines that follow one another are shown with the next-line operator ('), not a move each;
 # pdftotext -bbox reads the caption lines back one leading (9 pt x 1.2 = 10.8 pt) apart.
@@ -99,6 +109,6 @@ contains "$ERR" "NO-SUCH-BUS" "the unknown ID is named"
 check "no PDF for an unknown --bus" test ! -e "$TW_TMP/none.pdf"
 
 # the same input and date give the same bytes
-run labels "$TW_DATA/core/small.csv" --out "$TW_TMP/again.pdf" --manifest "$TW_TMP/again.json" --date 2026-12-01
+run labels "$TW_DATA/core/small.csv" --out "$TW_TMP/again.pdf" --manifest "$TW_TMP/again.registry" --date 2026-12-01
 check "output is byte-for-byte reproducible" cmp "$out" "$TW_TMP/again.pdf"
 finish

@@ -596,6 +596,52 @@ static void sheet_layout_should_put_two_labels_on_each_page(void **state)
     free(cmd);
 }
 
+/* Issue 13: a layout whose regions overlap (built by hand: the QR box reaching into the
+ * footer) is refused before anything is drawn, naming both texts. */
+static void text_drawn_over_other_text_should_be_refused(void **state)
+{
+    (void)state;
+    tw_layout lay;
+    assert_int_equal(tw_layout_default(&lay), 0);
+    lay.qr.y = lay.footer.y; /* the symbol and its caption now cover the cautions */
+    char err[512];
+    tw_label_doc *doc = tw_label_doc_new(&lay, NULL, "2024-08-01", err, sizeof err);
+    assert_non_null(doc);
+    tw_label l;
+    label_warning(&l);
+    assert_int_equal(tw_label_doc_add(doc, &l, payloads[0], err, sizeof err), -1);
+    assert_non_null(strstr(err, "label CH-MCC-3: "));
+    assert_non_null(strstr(err, "would be drawn over"));
+    assert_non_null(strstr(err, "QR code"));
+    assert_int_equal(tw_label_doc_count(doc), 0);
+    tw_label_free(&l);
+    tw_label_doc_free(doc);
+    tw_layout_free(&lay);
+}
+
+/* Issue 13: a character the label font has no glyph for is refused, in a draft too (it would
+ * print as an empty box), naming the field and the character. */
+static void text_the_font_cannot_draw_should_be_refused_even_in_a_draft(void **state)
+{
+    (void)state;
+    static const char *const bad[][2] = {
+        {"Pump house \xe4\xb8\xad", "U+4E2D"},
+        {"Pump house \xf0\x9f\x94\xa5", "U+1F525"},
+        {"\xd7\xa9\xd7\x9c\xd7\x95\xd7\x9d", "right-to-left"},
+    };
+    for (size_t i = 0; i < sizeof bad / sizeof bad[0]; i++)
+        for (int draft = 0; draft <= 1; draft++) {
+            tw_label l;
+            label_warning(&l);
+            set(&l, TW_L_LOCATION, bad[i][0]);
+            l.draft = draft;
+            char err[512];
+            assert_int_equal(add_one(&l, payloads[0], err, sizeof err), -1);
+            assert_non_null(strstr(err, "label CH-MCC-3: location: character"));
+            assert_non_null(strstr(err, bad[i][1]));
+        }
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -618,6 +664,8 @@ int main(void)
         cmocka_unit_test(missing_fonts_should_be_named_in_the_error),
         cmocka_unit_test(bad_document_date_should_be_refused),
         cmocka_unit_test(sheet_layout_should_put_two_labels_on_each_page),
+        cmocka_unit_test(text_drawn_over_other_text_should_be_refused),
+        cmocka_unit_test(text_the_font_cannot_draw_should_be_refused_even_in_a_draft),
     };
     return cmocka_run_group_tests(tests, setup, teardown);
 }

@@ -170,6 +170,46 @@ static void atomic_write_should_replace_whole_and_refuse_directories(void **stat
     free(path);
 }
 
+/* A path that is not a regular file is refused by every entry point that could replace it, and
+ * is left as it was; a label record is refused as an output. */
+static void atomic_outputs_should_refuse_links_fifos_and_label_records(void **state)
+{
+    (void)state;
+    char dir[] = "/tmp/tw-atomic-XXXXXX";
+    assert_non_null(mkdtemp(dir));
+    char *fifo = tw_asprintf("%s/pipe", dir), *link = tw_asprintf("%s/link", dir);
+    char *plain = tw_asprintf("%s/plain.txt", dir), *rec = tw_asprintf("%s/rec.json", dir);
+    char err[256];
+    assert_int_equal(mkfifo(fifo, 0600), 0);
+    assert_int_equal(tw_atomic_write(plain, "x", 1, err, sizeof err), 0);
+    assert_int_equal(symlink("plain.txt", link), 0);
+    const char *bad[] = {fifo, link};
+    for (size_t i = 0; i < 2; i++) {
+        assert_int_equal(tw_output_path_ok(bad[i], NULL, err, sizeof err), -1);
+        assert_non_null(strstr(err, "refusing to replace"));
+        assert_int_equal(tw_atomic_write(bad[i], "y", 1, err, sizeof err), -1);
+        assert_null(tw_atomic_tmp_path(bad[i], err, sizeof err));
+    }
+    struct stat st;
+    assert_int_equal(lstat(fifo, &st), 0);
+    assert_true(S_ISFIFO(st.st_mode));
+    assert_int_equal(lstat(link, &st), 0);
+    assert_true(S_ISLNK(st.st_mode));
+    static const char record[] = "{\n  \"format\": \"" TW_LABEL_RECORD_FORMAT "\",\n  \"labels\": []}\n";
+    assert_int_equal(tw_atomic_write(rec, record, sizeof record - 1, err, sizeof err), 0);
+    assert_int_equal(tw_output_path_ok(rec, NULL, err, sizeof err), -1);
+    assert_non_null(strstr(err, "record of printed labels"));
+    assert_int_equal(tw_output_path_ok(plain, NULL, err, sizeof err), 0);
+    const char *all[] = {fifo, link, plain, rec};
+    for (size_t i = 0; i < 4; i++)
+        assert_int_equal(unlink(all[i]), 0);
+    assert_int_equal(rmdir(dir), 0); /* nothing left behind */
+    free(fifo);
+    free(link);
+    free(plain);
+    free(rec);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -180,6 +220,7 @@ int main(void)
         cmocka_unit_test(arena_should_keep_every_string_until_freed),
         cmocka_unit_test(finding_should_print_file_line_id_field_message),
         cmocka_unit_test(atomic_write_should_replace_whole_and_refuse_directories),
+        cmocka_unit_test(atomic_outputs_should_refuse_links_fifos_and_label_records),
     };
     return cmocka_run_group_tests_name("util", tests, NULL, NULL);
 }

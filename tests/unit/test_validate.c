@@ -226,6 +226,21 @@ static void a_voltage_that_differs_between_scenarios_should_be_an_error(void **s
     fixture_free(&f);
 }
 
+static void scenarios_of_different_study_revisions_should_be_an_error(void **state)
+{
+    (void)state;
+    fixture f;
+    check_csv(&f, HEAD "A,max,2025-06-30,480,8,457.2,1219.2,\n"
+                       "A,min,2021-03-10,480,9,457.2,1300,\n"
+                       "B,max,2025-06-30,480,8,457.2,1219.2,\n"
+                       "B,min,2025-06-30,480,9,457.2,1300,\n");
+    assert_int_equal(f.errors, 1); /* bus B's rows agree */
+    const tw_diag *g = find_diag(&f, "'2021-03-10' here, '2025-06-30' at line 2");
+    assert_non_null(g);
+    assert_int_equal(g->line, 3);
+    fixture_free(&f);
+}
+
 static void large_service_equipment_should_need_fault_current_and_clearing_time(void **state)
 {
     (void)state;
@@ -291,6 +306,111 @@ static void validate_should_return_only_the_errors_it_found(void **state)
     fixture_free(&f);
 }
 
+/* Issue 13: an invisible character makes two IDs that read the same name two buses. */
+static void an_id_with_an_invisible_character_should_be_an_error(void **state)
+{
+    (void)state;
+    static const char *const hidden[][2] = {
+        {"MCC-1\xc2\xa0", "U+00A0"},        /* no-break space */
+        {"MCC\xe2\x80\x8b-1", "U+200B"},    /* zero-width space */
+        {"\xef\xbb\xbfMCC-1", "U+FEFF"},    /* byte order mark */
+        {"MCC-\xe2\x80\xae" "1", "U+202E"}, /* right-to-left override */
+        {"MCC-\xe2\x81\xa9" "1", "U+2069"}, /* pop directional isolate */
+        {"MCC\xc2\xad-1", "U+00AD"},        /* soft hyphen (format) */
+        {"MCC\xe3\x80\x80" "1", "U+3000"},  /* ideographic space */
+    };
+    for (size_t i = 0; i < sizeof hidden / sizeof hidden[0]; i++) {
+        char csv[512];
+        snprintf(csv, sizeof csv, HEAD "%s,max,2025-06-30,480,8.2,457.2,1219.2,\n", hidden[i][0]);
+        fixture f;
+        check_csv(&f, csv);
+        const tw_diag *g = find_diag(&f, hidden[i][1]);
+        assert_non_null(g);
+        assert_string_equal(g->field, "equipment_id");
+        assert_int_equal(g->line, 2);
+        fixture_free(&f);
+    }
+    fixture f; /* the other side: accented letters and a plain inner space are fine */
+    check_csv(&f, HEAD "Schaltanlage Süd 1,max,2025-06-30,480,8.2,457.2,1219.2,\n");
+    assert_int_equal(f.errors, 0);
+    fixture_free(&f);
+}
+
+/* Issue 13: IDs equal after NFKC case folding are the same bus: both lines get an error naming
+ * the other. */
+static void ids_equal_after_case_folding_should_name_both_lines(void **state)
+{
+    (void)state;
+    static const char *const twins[][2] = {
+        {"MCC-1", "mcc-1"},
+        {"MCC-1", "\xef\xbc\xad" "CC-1"},   /* full-width M */
+        {"MCC-1", "MCC-\xc2\xb9"},          /* superscript one */
+        {"STRASSE-1", "stra\xc3\x9f" "e-1"}, /* sharp s folds to ss */
+        {"MCC 1", "mcc  1"},                 /* two spaces read as one */
+    };
+    for (size_t i = 0; i < sizeof twins / sizeof twins[0]; i++) {
+        char csv[512];
+        snprintf(csv, sizeof csv, HEAD "%s,max,2025-06-30,480,8.2,457.2,1219.2,\n"
+                 "%s,max,2025-06-30,480,8.2,457.2,1219.2,\n", twins[i][0], twins[i][1]);
+        fixture f;
+        check_csv(&f, csv);
+        int at2 = 0, at3 = 0;
+        for (size_t k = 0; k < f.d.count; k++) {
+            const tw_diag *g = &f.d.items[k];
+            if (!g->message || !strstr(g->message, "read as the same ID"))
+                continue;
+            at2 += g->line == 2 && strstr(g->message, "(line 3)") != NULL;
+            at3 += g->line == 3 && strstr(g->message, "(line 2)") != NULL;
+        }
+        assert_int_equal(at2, 1);
+        assert_int_equal(at3, 1);
+        fixture_free(&f);
+    }
+    fixture f; /* the other side: IDs that differ in a letter or digit */
+    check_csv(&f, HEAD "MCC-1,max,2025-06-30,480,8.2,457.2,1219.2,\n"
+                       "MCC-2,max,2025-06-30,480,8.2,457.2,1219.2,\n"
+                       "MCC-l,max,2025-06-30,480,8.2,457.2,1219.2,\n");
+    assert_int_equal(f.errors, 0);
+    fixture_free(&f);
+}
+
+/* Issue 13: printed text the label font cannot draw as it reads is an error naming the field
+ * and the character. */
+static void text_the_font_cannot_draw_should_be_an_error(void **state)
+{
+    (void)state;
+    static const char *const bad[][2] = {
+        {"Panel \xe4\xb8\xad", "U+4E2D"},          /* CJK: no glyph in DejaVu Sans */
+        {"Panel \xee\x80\x80", "U+E000"},          /* private use */
+        {"Panel \xf0\x9f\x94\xa5", "U+1F525"},     /* beyond the BMP */
+        {"\xd7\xa9\xd7\x9c\xd7\x95\xd7\x9d", "U+05E9"}, /* Hebrew */
+        {"\xd9\x84\xd9\x88\xd8\xad\xd8\xa9", "U+0644"}, /* Arabic */
+    };
+    for (size_t i = 0; i < sizeof bad / sizeof bad[0]; i++) {
+        char json[512];
+        snprintf(json, sizeof json,
+                 "{\"buses\": [{\"equipment_id\": \"P-1\", \"description\": \"%s\", "
+                 "\"study_date\": \"2025-06-30\", \"nominal_voltage_v\": 480, "
+                 "\"incident_energy_cal_cm2\": 8.2, \"working_distance_mm\": 457.2, "
+                 "\"arc_flash_boundary_mm\": 1219.2}]}", bad[i][0]);
+        fixture f;
+        check_json(&f, json);
+        const tw_diag *g = find_diag(&f, bad[i][1]);
+        assert_non_null(g);
+        assert_string_equal(g->field, "description");
+        assert_string_equal(g->path, "buses[0].description");
+        fixture_free(&f);
+    }
+    fixture f; /* the other side: Greek, accents and the euro sign are in DejaVu Sans */
+    check_json(&f, "{\"buses\": [{\"equipment_id\": \"P-1\", \"description\": "
+                   "\"\xce\x95\xce\xbb\xce\xbb\xce\xac\xce\xb4\xce\xb1 \xc3\xa9 \xe2\x82\xac\", "
+                   "\"study_date\": \"2025-06-30\", \"nominal_voltage_v\": 480, "
+                   "\"incident_energy_cal_cm2\": 8.2, \"working_distance_mm\": 457.2, "
+                   "\"arc_flash_boundary_mm\": 1219.2}]}");
+    assert_int_equal(f.errors, 0);
+    fixture_free(&f);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -305,10 +425,14 @@ int main(void)
         cmocka_unit_test(a_missing_or_malformed_study_date_should_be_an_error),
         cmocka_unit_test(a_voltage_outside_the_tables_should_be_an_error),
         cmocka_unit_test(a_voltage_that_differs_between_scenarios_should_be_an_error),
+        cmocka_unit_test(scenarios_of_different_study_revisions_should_be_an_error),
         cmocka_unit_test(large_service_equipment_should_need_fault_current_and_clearing_time),
         cmocka_unit_test(an_unknown_electrode_configuration_should_be_a_warning),
         cmocka_unit_test(a_row_without_an_id_should_be_reported_and_left_out_of_the_buses),
         cmocka_unit_test(validate_should_return_only_the_errors_it_found),
+        cmocka_unit_test(an_id_with_an_invisible_character_should_be_an_error),
+        cmocka_unit_test(ids_equal_after_case_folding_should_name_both_lines),
+        cmocka_unit_test(text_the_font_cannot_draw_should_be_an_error),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }
