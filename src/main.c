@@ -19,15 +19,16 @@ static int cmd_version(int argc, char **argv);
 
 static const command commands[] = {
     {"check", cmd_check, "check study results for errors before anything is printed"},
-    {"labels", cmd_labels, "print arc-flash hazard labels (PDF) and their manifest"},
+    {"labels", cmd_labels, "print arc-flash hazard labels (PDF), recorded in the registry"},
     {"infinite-bus", cmd_infinite_bus, "a transformer's full-load and infinite-bus fault current"},
     {"envelope", cmd_envelope, "worst case per bus across scenarios; where energy rises"},
     {"summary", cmd_summary, "a study summary PDF: table, energy chart, scenario sweeps"},
     {"reprint", cmd_reprint, "revise one label after a protective-device setting change"},
     {"diff", cmd_diff, "compare the label content of two study revisions, bus by bus"},
     {"due", cmd_due, "list buses whose 5-year study review is overdue or due soon"},
-    {"verify", cmd_verify, "check a scanned label's QR payload against the manifest"},
+    {"verify", cmd_verify, "check a scanned label's QR payload against the registry"},
     {"permit", cmd_permit, "draft energized electrical work permits (PDF) from a job file"},
+    {"registry", cmd_registry, "export the label registry, or import an earlier manifest"},
     {"layouts", cmd_layouts, "list the shipped label layouts: label size, page, labels per page"},
     {"help", cmd_help, "list the commands"},
     {"version", cmd_version, "print the version"},

@@ -1,5 +1,5 @@
 /* cmd_labels.c - `tagwright labels RESULTS --out labels.pdf`: one posting label per bus, from the
- * worst case across its scenarios, plus the manifest beside the PDF.
+ * worst case across its scenarios, recorded in the site's registry.
  *
  * Fails closed: if any selected bus has an error, nothing is written (exit 1) unless --draft,
  * which prints watermarked drafts for those buses instead. */
@@ -19,11 +19,14 @@
 #include "base/tw_util.h"
 
 static const char labels_usage[] =
-    "usage: tagwright labels RESULTS [--site SITE.json] [--out labels.pdf] [--manifest M.json]\n"
+    "usage: tagwright labels RESULTS [--site SITE.json] [--out labels.pdf] [--manifest REG]\n"
     "                        [--bus ID]... [--draft] [--layout NAME|FILE] [--date YYYY-MM-DD]\n"
-    "                        [--volume-size N] [--jobs N]\n"
+    "                        [--volume-size N] [--jobs N] [--reason TEXT]\n"
+    "                        [--approved-by NAME --reason TEXT]\n"
     "  --out       PDF to write (default labels.pdf); written only if every label can be made\n"
-    "  --manifest  record of printed labels (default: beside the PDF, NAME.manifest.json)\n"
+    "  --manifest  the label registry to record in (default: site.json \"registry\")\n"
+    "  --approved-by  who approved labels that lower the hazard (refused without it)\n"
+    "  --reason    why these revisions were made; recorded with them\n"
     "  --bus       print only this equipment ID (repeatable)\n"
     "  --draft     print buses with errors as watermarked drafts, not for posting\n"
     "  --layout    shipped layout name or layout file (default 4x6)\n"
@@ -34,7 +37,7 @@ static const char labels_usage[] =
     "              processor, at most 4); the output is the same whatever the number\n";
 
 typedef struct {
-    const char *results, *site, *out, *manifest, *layout;
+    const char *results, *site, *out, *manifest, *layout, *reason, *approved_by;
     const char **buses;
     size_t bus_count;
     int draft;
@@ -79,6 +82,7 @@ static int parse_args(int argc, char **argv, labels_args *a)
         {"draft", no_argument, NULL, 'd'},        {"layout", required_argument, NULL, 'l'},
         {"date", required_argument, NULL, 't'},   {"help", no_argument, NULL, 'h'},
         {"volume-size", required_argument, NULL, 'V'}, {"jobs", required_argument, NULL, 'j'},
+        {"reason", required_argument, NULL, 'r'}, {"approved-by", required_argument, NULL, 'A'},
         {NULL, 0, NULL, 0},
     };
     memset(a, 0, sizeof *a);
@@ -94,6 +98,8 @@ static int parse_args(int argc, char **argv, labels_args *a)
         case 's': a->site = optarg; break;
         case 'o': a->out = optarg; break;
         case 'm': a->manifest = optarg; break;
+        case 'r': a->reason = optarg; break;
+        case 'A': a->approved_by = optarg; break;
         case 'b': a->buses[a->bus_count++] = optarg; break;
         case 'd': a->draft = 1; break;
         case 'l': a->layout = optarg; break;
@@ -116,7 +122,7 @@ static int parse_args(int argc, char **argv, labels_args *a)
     if (optind != argc - 1)
         return tw_usage_error("labels", "expected one results file (CSV or JSON)");
     a->results = argv[optind];
-    return 0;
+    return tw_approval_ok("labels", a->approved_by, a->reason);
 }
 
 /* The buses to print: all, or those named with --bus (an unknown ID is an error finding). */
@@ -183,11 +189,12 @@ static int run(tw_study *st, const labels_args *a)
     char err[1024] = "";
     /* Every file the run reads or writes besides the PDF. The layout is a file only when it
      * names one; a shipped name never clashes. */
-    const char *inputs[] = {a->results, a->site, a->manifest, a->layout};
-    if (tw_output_path_ok_n(a->out, inputs, 4, err, sizeof err) != 0) {
+    const char *inputs[] = {a->results, a->site, a->manifest, a->layout, st->site.registry};
+    if (tw_output_path_ok_n(a->out, inputs, 5, err, sizeof err) != 0) {
         fprintf(stderr, "tagwright labels: %s\n", err);
         return TW_EXIT_IO;
     }
+    char *registry = NULL;
     size_t n = 0, unknown_bus = 0;
     const tw_bus **sel = select_buses(st, a, &n, &unknown_bus);
     tw_label *labels = calloc(n ? n : 1, sizeof *labels);
@@ -220,13 +227,16 @@ static int run(tw_study *st, const labels_args *a)
     tw_results_free(&st->results);
     free(sel);
     sel = NULL;
-    tw_print_opts po = {a->out, a->manifest, a->date, &layout, &st->site, NULL};
+    registry = tw_registry_choose("labels", a->manifest, &st->site, a->out);
+    tw_print_opts po = {a->out, registry, a->date, &layout, &st->site, a->reason,
+                        a->approved_by, NULL, 0};
     rc = tw_print_labels_jobs(labels, n, &po, a->volume_size, a->jobs, err, sizeof err);
     if (rc != TW_EXIT_OK)
         fprintf(stderr, "tagwright labels: %s\n", err);
     else
         print_written(a, n);
 done:
+    free(registry);
     for (size_t i = 0; labels && i < n; i++)
         tw_label_free(&labels[i]);
     free(labels);

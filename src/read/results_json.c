@@ -13,6 +13,7 @@
 
 #include "base/tw_map.h"
 #include "base/tw_util.h"
+#include "read/tw_json.h"
 
 typedef struct {
     tw_results *out;
@@ -120,14 +121,10 @@ static void warn_unknown_key(json_reader *jr, const char *obj_path, const char *
     free(ex);
 }
 
-/* The keys of one object into row r; the equipment ID first, so findings can name it. */
+/* The keys of one object into row r; the equipment ID first, so findings can name it. Each key
+ * comes once (tw_json_parse() refuses a key given twice). */
 static void read_object(json_reader *jr, tw_row *r, const cJSON *obj)
 {
-    unsigned char *seen = calloc(tw_column_count, 1);
-    if (!seen) {
-        out_of_memory(jr, r->path);
-        return;
-    }
     for (int pass = 0; pass < 2; pass++) {
         for (const cJSON *v = obj->child; v; v = v->next) {
             const tw_column *c = v->string ? tw_column_find(v->string) : NULL;
@@ -138,18 +135,9 @@ static void read_object(json_reader *jr, tw_row *r, const cJSON *obj)
             }
             if ((c->field == TW_F_EQUIPMENT_ID) != (pass == 0))
                 continue;
-            size_t k = (size_t)(c - tw_columns);
-            if (seen[k]) {
-                tw_row_diag(jr->d, r, TW_ERROR, c->field, c->name,
-                            "key given twice in one object; expected it once");
-                tw_row_mark_invalid(r, c->field);
-                continue;
-            }
-            seen[k] = 1;
             read_value(jr, r, c, v);
         }
     }
-    free(seen);
 }
 
 /* Study-level values fill what a bus leaves unset. A default that could not be read was
@@ -213,12 +201,10 @@ static void read_top_level(json_reader *jr, const cJSON *root)
     const cJSON *study = NULL, *buses = NULL;
     for (const cJSON *v = root->child; v; v = v->next) {
         const char *key = v->string ? v->string : "";
-        if (strcmp(key, "study") == 0 && !study)
+        if (strcmp(key, "study") == 0)
             study = v;
-        else if (strcmp(key, "buses") == 0 && !buses)
+        else if (strcmp(key, "buses") == 0)
             buses = v;
-        else if (strcmp(key, "study") == 0 || strcmp(key, "buses") == 0)
-            path_error(jr, key, "key given twice; expected it once");
         else
             warn_unknown_key(jr, "$", key);
     }
@@ -245,32 +231,6 @@ static void read_top_level(json_reader *jr, const cJSON *root)
     free(def.path);
 }
 
-static long line_at(const char *s, size_t off)
-{
-    long line = 1;
-    for (size_t i = 0; i < off; i++)
-        line += s[i] == '\n';
-    return line;
-}
-
-/* An error at a place in the text (cJSON keeps no positions once parsed). */
-static void text_error(tw_results *out, tw_diags *d, const char *data, size_t off,
-                       const char *msg)
-{
-    tw_source src = {out->file, line_at(data, off), NULL};
-    tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "%s", msg);
-}
-
-/* Everything after the value must be blank. */
-static int only_blanks_after(const char *data, size_t off, size_t len, size_t *where)
-{
-    while (off < len && (data[off] == ' ' || data[off] == '\t' || data[off] == '\r' ||
-                         data[off] == '\n'))
-        off++;
-    *where = off;
-    return off == len;
-}
-
 int tw_results_read_json(const char *name, const char *data, size_t len, tw_results *out,
                          tw_diags *d)
 {
@@ -281,41 +241,14 @@ int tw_results_read_json(const char *name, const char *data, size_t len, tw_resu
         tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "out of memory");
         return -1;
     }
-    if (tw_json_value_bound(data, len) > TW_MAX_JSON_VALUES) {
-        text_error(out, d, data, 0,
-                   "more than 5000000 JSON values; expected at most that in one file (split the "
-                   "study, or use CSV)");
-        return -1;
-    }
-    size_t skip = len >= 3 && memcmp(data, "\xEF\xBB\xBF", 3) == 0 ? 3 : 0;
-    const char *end = NULL;
-    cJSON *root = cJSON_ParseWithLengthOpts(data + skip, len - skip, &end, 0);
-    size_t off = end && end >= data && end <= data + len ? (size_t)(end - data) : 0;
-    if (!root || !only_blanks_after(data, off, len, &off)) {
-        /* not JSON at all: the one case, with I/O and memory, where the read fails */
-        text_error(out, d, data, off,
-                   root ? "unexpected text after the end of the JSON object"
-                        : "not valid JSON here; expected {\"study\": {...}, \"buses\": [...]}");
-        cJSON_Delete(root);
-        return -1;
-    }
+    static const tw_json_spec spec = {"{\"study\": {...}, \"buses\": [...]}", TW_JSON_OBJECT,
+                                      NULL};
+    cJSON *root = tw_json_parse(out->file, data, len, &spec, d);
+    if (!root)
+        return -1; /* refused as a whole: the one case, with I/O and memory, where the read fails */
     json_reader jr = {out, d, {0}, 0, 0};
     tw_map_init(&jr.warned);
-    /* cJSON would cut a string at a NUL without saying so; a value must never be shortened
-     * silently, so no bus is read from such a file. */
-    size_t nul = tw_json_find_nul(data, len);
-    if (nul < len)
-        text_error(out, d, data, nul,
-                   data[nul] ? "expected text without control characters, found an escaped NUL "
-                               "(\\u0000); no bus is read from this file"
-                             : "expected text without control characters, found a NUL byte; no "
-                               "bus is read from this file");
-    else if (!cJSON_IsObject(root))
-        text_error(out, d, data, skip,
-                   "expected a JSON object {\"study\": {...}, \"buses\": [...]}, got another "
-                   "kind of value; no bus is read from this file");
-    else
-        read_top_level(&jr, root);
+    read_top_level(&jr, root);
     for (size_t i = 0; i < out->count; i++)
         out->rows[i].errors += jr.file_errors;
     tw_map_free(&jr.warned);

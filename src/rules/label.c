@@ -49,12 +49,6 @@ static const char *const key_names[TW_L_COUNT] = {
     [TW_L_REVISION_NOTE] = "revision_note",
 };
 
-/* NFPA 70E 130.5(G): the arc-flash risk assessment is reviewed at intervals not exceeding
- * 5 years (from memory, subsection number included: verify against the edition in force). */
-#define TW_REVIEW_YEARS 5
-
-/* NFPA 70E 130.5(H): a PPE category is 1 to 4. */
-#define TW_MAX_PPE_CATEGORY 4
 
 const char *tw_label_key_name(tw_label_key k)
 {
@@ -365,7 +359,7 @@ static void derive_dates(deriver *D, const char *print_date)
     char buf[11];
     tw_date_format(date, buf);
     set(D, TW_L_STUDY_DATE, buf);
-    tw_date_format(tw_date_add_years(date, TW_REVIEW_YEARS), buf);
+    tw_date_format(tw_review_due_date(date), buf);
     set(D, TW_L_REVIEW_DUE, buf);
 }
 
@@ -423,7 +417,7 @@ static void derive_voltage(deriver *D)
 static int category_of(deriver *D)
 {
     double c = D->row->num[TW_F_PPE_CATEGORY];
-    if (!(c >= 1 && c <= TW_MAX_PPE_CATEGORY && c == floor(c))) {
+    if (!tw_ppe_category_valid(c)) {
         report(D, TW_ERROR, TW_F_PPE_CATEGORY, "expected a whole number 1 to 4, got %g", c);
         return 0;
     }
@@ -499,23 +493,6 @@ static int usable(const tw_row *r, tw_field f)
     return number_problem(r, f) == NULL;
 }
 
-/* The distance exponent for computing a missing boundary: the study's own column, else the
- * IEEE 1584-2002 Table 4 value for the equipment type (tw_distance_exponent_for), whose
- * source the boundary note then names. NAN when neither is usable. */
-static double boundary_exponent(const tw_row *r, const char **default_source)
-{
-    *default_source = NULL;
-    if (tw_row_has(r, TW_F_DISTANCE_EXPONENT) || ((r->invalid >> TW_F_DISTANCE_EXPONENT) & 1u))
-        return usable(r, TW_F_DISTANCE_EXPONENT) ? r->num[TW_F_DISTANCE_EXPONENT] : NAN;
-    if (!tw_row_has(r, TW_F_EQUIPMENT_TYPE) || !usable(r, TW_F_NOMINAL_VOLTAGE_V))
-        return NAN;
-    double x = tw_distance_exponent_for(r->text[TW_F_EQUIPMENT_TYPE],
-                                        r->num[TW_F_NOMINAL_VOLTAGE_V], default_source);
-    if (isnan(x))
-        *default_source = NULL;
-    return x;
-}
-
 /*
  * The arc-flash boundary as the study gives it; when the study left it out, computed from the
  * incident energy where it falls to 1.2 cal/cm2 (NFPA 70E definition of the arc-flash
@@ -536,7 +513,7 @@ static void derive_boundary(deriver *D)
         if (need_number(D, TW_F_ARC_FLASH_BOUNDARY_MM, "NFPA 70E 130.5(H)", &mm) != 0)
             return;
     } else if (usable(r, TW_F_INCIDENT_ENERGY_CAL) && usable(r, TW_F_WORKING_DISTANCE_MM) &&
-               !isnan(x = boundary_exponent(r, &default_source))) {
+               !isnan(x = tw_row_distance_exponent(r, &default_source))) {
         double e = tw_round_energy_up(r->num[TW_F_INCIDENT_ENERGY_CAL]);
         mm = tw_afb_mm(e, r->num[TW_F_WORKING_DISTANCE_MM], x);
         if (isnan(mm)) {
@@ -641,7 +618,7 @@ static void derive_service(deriver *D, const tw_bus *bus, const char *print_date
     double amps, ka, s;
     if (need_number(D, TW_F_SERVICE_RATING_A, "service equipment, NEC 110.16(B)", &amps) != 0)
         return;
-    if (amps < D->site->service_label_min_a)
+    if (amps < tw_service_label_min_a(D->site))
         return;
     D->row = max_fault_row(bus, governing);
     if (need_number(D, TW_F_BOLTED_FAULT_KA, "available fault current, NEC 110.16(B)", &ka) == 0 &&

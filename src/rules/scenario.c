@@ -1,24 +1,17 @@
 /* scenario.c - rows grouped into buses, and the worst case of each (see tw_scenario.h). */
 #include "rules/tw_scenario.h"
 
+#include <math.h>
 #include <stdlib.h>
 #include <string.h>
 
 #include "rules/tw_rules.h"
 
-/* The energy a row stands for: its incident energy, or, for a row from the PPE category
- * method, that category's minimum arc rating (NFPA 70E Table 130.7(C)(15)(c)). -1 when the
- * row has neither. */
+/* The energy a row stands for (tw_row_rating), -1 when it has none. */
 static double row_energy(const tw_row *r)
 {
-    if (tw_row_has(r, TW_F_INCIDENT_ENERGY_CAL))
-        return r->num[TW_F_INCIDENT_ENERGY_CAL];
-    if (tw_row_has(r, TW_F_PPE_CATEGORY)) {
-        double cat = r->num[TW_F_PPE_CATEGORY];
-        double rating = cat >= 1 && cat <= 4 ? tw_ppe_category_rating((int)cat) : 0;
-        return rating > 0 ? rating : -1;
-    }
-    return -1;
+    double rating = tw_row_rating(r);
+    return isnan(rating) ? -1 : rating;
 }
 
 static double row_boundary(const tw_row *r)

@@ -5,6 +5,7 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include "rules/tw_rules.h"
 #include "rules/tw_validate.h"
 
 /* A file that exists, is not a directory and can be opened for reading. */
@@ -21,7 +22,10 @@ int tw_study_load(tw_study *s, const char *results_path, const char *site_path)
     /* tw_site_load() starts from the defaults itself. */
     if (!site_path && tw_site_defaults(&s->site) != 0)
         return -1;
-    if (site_path && tw_site_load(site_path, &s->site, &s->diags) != 0) {
+    int site_rc = site_path ? tw_site_load(site_path, &s->site, &s->diags) : 0;
+    if (site_path && tw_site_check_rules(&s->site, site_path, &s->diags) != 0)
+        site_rc = -1;
+    if (site_rc != 0) {
         s->site_bad = 1;
         s->unreadable = !readable_file(site_path); /* I/O (exit 3), not bad data */
         return -1;

@@ -49,6 +49,8 @@ qr_of() {
     zbarimg -q --raw "$TW_TMP"/qr-*.png 2>/dev/null | head -n 1
     rm -f "$TW_TMP"/qr-*.png
 }
+# exported REGISTRY: its JSON export in a file beside it (REGISTRY.json), for python3 to read
+exported() { "$TW_BIN" registry export --manifest "$1" >"$1.json" 2>/dev/null; echo "$1.json"; }
 finish() {
     echo "done" >>"$RESULTS_FILE"
     [ "$FAILS" -eq 0 ]
