@@ -275,8 +275,10 @@ static size_t outputs_left(void)
     while ((e = readdir(d)) != NULL)
         if (strcmp(e->d_name, ".") && strcmp(e->d_name, "..") && strcmp(e->d_name, "seed.csv") &&
             strcmp(e->d_name, "seed.json") && strcmp(e->d_name, "r.csv") &&
-            strcmp(e->d_name, "r.json") && strcmp(e->d_name, "job.json"))
+            strcmp(e->d_name, "r.json") && strcmp(e->d_name, "job.json")) {
+            fprintf(stderr, "left: %s\n", e->d_name); /* named when the property breaks */
             n++;
+        }
     closedir(d);
     return n;
 }
@@ -288,7 +290,9 @@ static void remove_outputs(void)
     struct dirent *e;
     char p[512];
     while ((e = readdir(d)) != NULL)
-        if (strncmp(e->d_name, "out", 3) == 0) {
+        /* outputs, and the registry a run that posted recorded in: each run starts anew */
+        if (strncmp(e->d_name, "out", 3) == 0 ||
+            strncmp(e->d_name, "tagwright-registry", 18) == 0) {
             path_in(p, sizeof p, e->d_name);
             unlink(p);
         }
