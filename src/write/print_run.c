@@ -783,6 +783,19 @@ static int change_control(const tw_label *labels, size_t n, char *const *lowered
     return TW_EXIT_IO;
 }
 
+/* A refused run writes nothing: a registry that it created, and that therefore holds no
+ * revision, is removed with its SQLite side files and its lock file. */
+static void forget_new_registry(const char *path)
+{
+    static const char *const suffix[] = {"", "-wal", "-shm", "-journal", ".lock"};
+    for (size_t i = 0; i < sizeof suffix / sizeof suffix[0]; i++) {
+        char *f = tw_asprintf("%s%s", path, suffix[i]);
+        if (f)
+            unlink(f);
+        free(f);
+    }
+}
+
 int tw_print_labels_jobs(const tw_label *labels, size_t n, const tw_print_opts *o,
                          size_t volume_size, int jobs, char *err, size_t errlen)
 {
@@ -795,7 +808,7 @@ int tw_print_labels_jobs(const tw_label *labels, size_t n, const tw_print_opts *
     tw_registry reg = {0};
     reg.lock_fd = -1;
     long long run = 0;
-    int rc = TW_EXIT_IO;
+    int rc = TW_EXIT_IO, registry_is_new = 0;
     if (!p.payloads || !revision || !lowered) {
         snprintf(err, errlen, "out of memory");
         goto done;
@@ -810,6 +823,7 @@ int tw_print_labels_jobs(const tw_label *labels, size_t n, const tw_print_opts *
         rc = TW_EXIT_USAGE;
         goto done;
     }
+    registry_is_new = access(o->registry_path, F_OK) != 0;
     rc = tw_registry_open(&reg, o->registry_path, 1, err, errlen);
     if (rc == TW_EXIT_OK)
         rc = tw_registry_plan(&reg, labels, n, o->site, revision, lowered, err, errlen);
@@ -833,6 +847,8 @@ int tw_print_labels_jobs(const tw_label *labels, size_t n, const tw_print_opts *
         rc = publish_all(&reg, run, &rec, o, err, errlen);
 done:
     tw_registry_close(&reg);
+    if (rc != TW_EXIT_OK && registry_is_new)
+        forget_new_registry(o->registry_path);
     records_free(&rec, n);
     for (size_t i = 0; lowered && i < n; i++)
         free(lowered[i]);

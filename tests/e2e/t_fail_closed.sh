@@ -48,7 +48,7 @@ expect_rc 0 "labels --draft prints"
 if has_tool pdftotext; then
     contains "$(pdftotext l.pdf - 2>/dev/null)" "DRAFT" "every label of the run is a watermarked draft"
 fi
-rm -f l.pdf l.manifest.json l.manifest.json.lock
+rm -f l.pdf tagwright-registry.db tagwright-registry.db.lock
 
 # A file check cannot read beyond its findings limit: the findings not kept block every bus.
 { printf '%s\n%s\n' "$H" "$GOOD"; seq 1 100001 | sed 's/.*/X&,ST-1,2026-01-10,480,mcc,18,abc,38.7,1.641/'; } >many.csv
@@ -60,14 +60,14 @@ nothing_here "labels beside 100,001 bad rows"
 run labels good.csv --out l.pdf --bus BI-MCC-1 --bus BI-MCC-1 --bus BI-MCC-1
 expect_rc 0 "labels with --bus three times"
 contains "$OUT" "l.pdf: 1 label" "one label, not three"
-rm -f l.pdf l.manifest.json l.manifest.json.lock
+rm -f l.pdf tagwright-registry.db tagwright-registry.db.lock
 
 # "." and ".." as IDs stay data in the record link (RFC 3986 5.2.4 would remove them).
 printf '%s\n..,.,2026-01-10,480,mcc,18,4.2,38.7,1.641\n' "$H" >dots.csv
 run labels dots.csv --out l.pdf
 expect_rc 0 "labels for the IDs '.' and '..'"
-contains "$(cat l.manifest.json)" "/%2E/%2E%2E/" "'.' and '..' are percent-encoded in the QR link"
-rm -f l.pdf l.manifest.json l.manifest.json.lock
+contains "$("$TW_BIN" registry export --manifest tagwright-registry.db)" "/%2E/%2E%2E/" "'.' and '..' are percent-encoded in the QR link"
+rm -f l.pdf tagwright-registry.db tagwright-registry.db.lock
 
 # A study dated after the print date is refused.
 run labels good.csv --out l.pdf --date 2025-12-31
@@ -80,7 +80,7 @@ python3 -c 'import json; print(json.dumps({"cautions": ["Caution %d: keep the do
 run labels good.csv --site site.json --out l.pdf
 expect_rc 1 "cautions that do not fit the footer"
 contains "$ERR" "the cautions do not fit the footer region" "says what does not fit"
-rm -f l.manifest.json.lock
+rm -f tagwright-registry.db.lock
 nothing_here "labels with cautions that do not fit"
 
 # reprint blames its own option for the values it made, not a row of the results.
@@ -126,19 +126,20 @@ rmdir pb
 
 # verify reads exactly one line of text on stdin.
 run labels good.csv --out l.pdf
-payload=$(sed -n 's/.*"payload":[[:space:]]*"\([^"]*\)".*/\1/p' l.manifest.json | head -n 1)
+payload=$("$TW_BIN" registry export --manifest tagwright-registry.db |
+    sed -n 's/.*"payload":[[:space:]]*"\([^"]*\)".*/\1/p' | head -n 1)
 printf '%s\n' "$payload" >payload.txt
-run verify --manifest l.manifest.json - <payload.txt
+run verify --manifest tagwright-registry.db - <payload.txt
 expect_rc 0 "verify: the payload is current"
 printf '%s\0EVIL\n' "$payload" >payload-nul.txt
-run verify --manifest l.manifest.json - <payload-nul.txt
+run verify --manifest tagwright-registry.db - <payload-nul.txt
 expect_rc 2 "verify: a NUL byte on stdin is refused"
 contains "$ERR" "NUL byte" "says why"
 lacks "$OUT" "current" "no answer is given"
 printf '%s\nsecond line\n' "$payload" >payload-two.txt
-run verify --manifest l.manifest.json - <payload-two.txt
+run verify --manifest tagwright-registry.db - <payload-two.txt
 expect_rc 2 "verify: a second line on stdin is refused"
 contains "$ERR" "more than one line" "says why"
-run verify --manifest l.manifest.json "https://records.invalid/nothing"
+run verify --manifest tagwright-registry.db "https://records.invalid/nothing"
 expect_rc 4 "verify: unknown has its own exit status, 4"
 finish
