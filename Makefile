@@ -15,7 +15,7 @@
 CC      ?= cc
 PREFIX  ?= /usr/local
 BUILD   ?= build
-PKGS     = libcjson libqrencode libcrypto icu-uc freetype2
+PKGS     = libcjson libqrencode libcrypto icu-uc freetype2 sqlite3
 CSTD     = -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE
 WARN     = -Wall -Wextra -Werror -Wshadow -Wstrict-prototypes -Wformat=2
 OPT     ?= -O2 -g
@@ -23,7 +23,7 @@ DATADIR  = $(PREFIX)/share/tagwright
 CPPFLAGS += -Iinclude -DTW_DATADIR='"$(DATADIR)"' $(shell pkg-config --cflags $(PKGS) 2>/dev/null)
 CFLAGS  ?=
 CFLAGS  += $(CSTD) $(WARN) $(OPT) $(EXTRA_CFLAGS)
-LDLIBS  += -lhpdf -lcsv $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lcjson -lqrencode -lcrypto -licuuc -licudata -lfreetype) -lpng -lz -lm -lpthread
+LDLIBS  += -lhpdf -lcsv $(shell pkg-config --libs $(PKGS) 2>/dev/null || echo -lcjson -lqrencode -lcrypto -licuuc -licudata -lfreetype -lsqlite3) -lpng -lz -lm -lpthread
 LDFLAGS += $(EXTRA_LDFLAGS)
 
 STAGES   = base read rules write cli
@@ -34,7 +34,7 @@ TEST_SRC = $(wildcard tests/unit/test_*.c)
 TESTS    = $(TEST_SRC:tests/unit/%.c=$(BUILD)/tests/%)
 BIN      = $(BUILD)/tagwright
 
-.PHONY: all demo check unit e2e asan-check deps install clean fuzz fuzz-build valgrind bench layers
+.PHONY: all demo check unit e2e asan-check deps install clean fuzz fuzz-build valgrind bench bench-registry layers
 all: $(BIN)
 
 # V=1 shows the full commands.
@@ -52,7 +52,7 @@ $(BIN): $(BUILD)/obj/main.o $(BUILD)/libtagwright.a
 	@$(if $(V),true,echo "  LINK  $@")
 	$(Q)$(CC) $(CFLAGS) $(LDFLAGS) -o $@ $^ $(LDLIBS)
 
-$(BUILD)/tests/%: tests/unit/%.c tests/unit/tw_test.h tests/same_results.h $(BUILD)/libtagwright.a | $(BUILD)/tests
+$(BUILD)/tests/%: tests/unit/%.c tests/unit/tw_test.h tests/same_results.h tests/fail_closed.h $(BUILD)/libtagwright.a | $(BUILD)/tests
 	@$(if $(V),true,echo "  TEST  $@")
 	$(Q)$(CC) $(CPPFLAGS) -Itests/unit $(CFLAGS) $(LDFLAGS) -o $@ $< $(BUILD)/libtagwright.a $(LDLIBS) -lcmocka
 
@@ -97,7 +97,7 @@ FUZZ_SRC      = $(wildcard tests/fuzz/fuzz_*.c)
 FUZZ_BINS     = $(FUZZ_SRC:tests/fuzz/%.c=$(BUILD)/fuzz/%)
 FUZZ_SAN      = -fsanitize=address,undefined -fno-sanitize-recover=all
 
-$(BUILD)/fuzz/%: tests/fuzz/%.c tests/fuzz/fuzz_common.h tests/same_results.h $(BUILD)/libtagwright.a
+$(BUILD)/fuzz/%: tests/fuzz/%.c tests/fuzz/fuzz_common.h tests/same_results.h tests/fail_closed.h $(BUILD)/libtagwright.a
 	@mkdir -p $(@D)
 	$(CC) $(CPPFLAGS) -Itests/fuzz $(CFLAGS) -fsanitize=fuzzer $(LDFLAGS) -o $@ $< \
 	  $(BUILD)/libtagwright.a $(LDLIBS)
@@ -127,5 +127,15 @@ clean:
 # Synthetic studies of 1,000, 10,000 and 100,000 buses: labels/s, wall and CPU time, peak
 # memory, and the growth exponent (bench/run.py; docs/performance.md). BENCH_ARGS adds options,
 # e.g. BENCH_ARGS="--sizes 1000,10000 --repeat 3".
-bench: $(BIN)
+bench: $(BIN) $(BUILD)/bench/record
 	python3 bench/run.py --bin $(BIN) $(BENCH_ARGS)
+	python3 bench/registry.py --bin $(BIN) --record $(BUILD)/bench/record
+
+# The registry alone (bench/registry.py): verify and a one-label reprint beside 1,000 and
+# 50,000 labels, and recording a 10,000-label run.
+bench-registry: $(BIN) $(BUILD)/bench/record
+	python3 bench/registry.py --bin $(BIN) --record $(BUILD)/bench/record $(REGISTRY_BENCH_ARGS)
+
+$(BUILD)/bench/record: bench/record.c $(BUILD)/libtagwright.a
+	@mkdir -p $(@D)
+	$(Q)$(CC) $(CPPFLAGS) $(CFLAGS) $(LDFLAGS) -o $@ $< $(BUILD)/libtagwright.a $(LDLIBS)

@@ -24,6 +24,9 @@ typedef struct {
 
 /* The "format" of a label record (write/manifest.c); an output never replaces such a file. */
 #define TW_LABEL_RECORD_FORMAT "tagwright-manifest"
+/* The SQLite application_id of a label registry (write/registry.c), "TWRG"; an output never
+ * replaces such a file either. */
+#define TW_REGISTRY_APP_ID 0x54575247
 
 /* Check that path can be an output: not a directory, not one of the inputs (same inode), not a
  * label record, and, when it exists, a regular file (a symbolic link, FIFO or device node is

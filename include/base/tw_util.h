@@ -77,21 +77,6 @@ size_t tw_input_size(FILE *f);
 char *tw_read_rest(FILE *f, const char *path, char *buf, size_t n, size_t *len, char *err,
                    size_t errlen);
 
-/* Most values in one JSON input (documented in docs/limits.md). cJSON holds each value in a
- * node of about 64 bytes, so without a limit a file of "[0,0,0,...]" would need 30 times its
- * size in memory; 5 million values is about 190,000 buses of 25 fields. */
-#define TW_MAX_JSON_VALUES 5000000
-
-/* An upper bound on the number of values in JSON text: 1 + the '[', '{' and ',' outside
- * strings. Cheap enough to run before parsing. */
-size_t tw_json_value_bound(const char *data, size_t len);
-
-/* Offset of the first NUL in JSON text - a raw NUL byte, or the backslash of an escaped
- * \u0000 - or len when there is none. cJSON ends a string at either without saying so, which
- * would shorten a value silently (an equipment ID "A\u0000B" read as "A"), so readers refuse
- * such text. */
-size_t tw_json_find_nul(const char *data, size_t len);
-
 /* Case-insensitive ASCII comparison. */
 int tw_strcaseeq(const char *a, const char *b);
 

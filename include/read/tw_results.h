@@ -79,6 +79,13 @@ extern const size_t tw_column_count;
 /* The column for a name (exact match), or NULL. */
 const tw_column *tw_column_find(const char *name);
 
+/* The known column an unknown name resembles, or NULL: the same name once case, blanks and
+ * punctuation are set aside ("incident_energy_cal/cm2"), a small edit distance (at most 2 for
+ * names of 8 characters or more, 1 for shorter ones: "incident_enrgy_cal_cm2"), or the same
+ * words with another unit ("nominal_voltage_kv"). Readers make such a column an error: its
+ * value would be dropped while the label shows another (docs/input-format.md). */
+const tw_column *tw_column_resembling(const char *name);
+
 /* The canonical name of a field, e.g. "arc_flash_boundary_mm". */
 const char *tw_field_name(tw_field f);
 
@@ -189,7 +196,7 @@ int tw_results_reserve(tw_results *r, size_t n);
 int tw_row_init(tw_results *r, tw_row *row);
 
 /* Store a text value for column c: trimmed (empty means absent), then checked for length,
- * valid UTF-8 and control characters (line breaks only in description and location). A bad
+ * valid UTF-8 and control characters (a line break is one: every value is one line). A bad
  * value gets an error finding naming c->name and marks the field invalid. */
 void tw_row_set_text(tw_row *r, const tw_column *c, const char *s, size_t len, tw_diags *d);
 

@@ -33,15 +33,17 @@ typedef struct {
     tw_ppe_level *ppe_levels;   /* sorted by rising arc rating */
     size_t ppe_level_count;
     tw_show show;               /* preference; a bus without incident energy shows its category */
-    double danger_above_cal_cm2;/* DANGER when energy exceeds this or the highest PPE level */
+    double danger_above_cal_cm2;/* 0: not set; rules/tw_rules.h tw_danger_above_cal() */
     tw_units units;
     char **cautions;            /* extra caution lines printed in the footer */
     size_t caution_count;
-    double service_label_min_a; /* NEC 110.16(B) threshold for service equipment */
+    double service_label_min_a; /* 0: not set; rules/tw_rules.h tw_service_label_min_a() */
     char *language;             /* "en", "es" or "en+es" */
     char *layout;               /* layout name or path; NULL: the default */
     char *columns;              /* column map for this site's exports (a path, relative ones
                                  * taken from the settings file's folder); NULL: none */
+    char *registry;             /* the site's label registry (relative to the settings file);
+                                   NULL: none named */
 } tw_site;
 
 /* Fill with the documented defaults. 0 on success, -1 when out of memory. */

@@ -73,6 +73,13 @@ double tw_afb_mm(double e_cal, double d_mm, double x);
  * NULL it receives a short citation for messages. */
 double tw_distance_exponent_for(const char *equipment_type, double volts, const char **source);
 
+/* The distance exponent of a row, the one rule every user follows: the study's own
+ * distance_exponent when the row gives one (NAN when that value is unreadable, not finite or
+ * not above 0: a value the study stated is never replaced by a table's), else
+ * tw_distance_exponent_for() its equipment type and nominal voltage, else NAN. *source (if not
+ * NULL) receives the table's citation when the default was used, else NULL. */
+double tw_row_distance_exponent(const tw_row *r, const char **source);
+
 /* ---- IEEE 1584-2018 model ranges -------------------------------------------------------- */
 
 /* One voltage band of the IEEE 1584-2018 model's range of validity. */
@@ -90,9 +97,6 @@ const tw_ieee1584_range *tw_ieee1584_range_for(double volts);
 #define TW_IEEE1584_V_MAX 15000.0
 #define TW_IEEE1584_MIN_WD_MM 305.0
 
-/* Clearing times above this are a warning: common practice caps the arc duration at 2 s (an
- * IEEE 1584 note: a person exposed to an arc would most likely move away within 2 s). */
-#define TW_MAX_CLEARING_S 2.0
 
 /* ---- envelope of a bus's scenarios ------------------------------------------------------ */
 

@@ -8,7 +8,7 @@
  * as the text printed on the label, already rounded toward safety, so that the canonical form
  * (and its SHA-256) covers exactly what a worker reads.
  *
- * Canonical form (docs/manifest.md): for each field in enum order that has a value,
+ * Canonical form (docs/registry.md): for each field in enum order that has a value,
  * "key=value\n", UTF-8, no trailing blanks. The hash is the lowercase hex SHA-256 of it.
  * service_label_date is left out of the canonical form, so reprinting unchanged content on
  * another day keeps the same hash.

@@ -23,10 +23,7 @@
 
 /* ---- rescaling after a setting change ---------------------------------------------------- */
 
-/* Above this clearing time the proportional estimate is flagged: IEEE 1584 (2002 B.1.2 and
- * 2018 6.9.1, from memory, verify against the edition in force) suggests 2 s as a reasonable
- * maximum arc duration, and a study may have capped its energy there (common practice). */
-#define TW_RESCALE_MAX_TIME_S 2.0
+/* Above TW_MAX_ARC_DURATION_S (rules/tw_rules.h) the proportional estimate is flagged. */
 
 /* A clearing time changed by more than this factor either way is flagged: a change that large
  * may move the device to another region of its curve, where the reduced arcing current of
@@ -83,9 +80,7 @@ size_t tw_label_compare(const tw_label *old_label, const tw_label *new_label, in
 
 /* ---- review dates ------------------------------------------------------------------------ */
 
-/* NFPA 70E 130.5(G): the arc-flash risk assessment is reviewed at intervals not exceeding
- * 5 years (from memory, verify against the edition in force). */
-#define TW_REVIEW_INTERVAL_YEARS 5
+/* Reviews are due tw_review_due_date() after the study (rules/tw_rules.h, NFPA 70E 130.5(G)). */
 
 typedef enum { TW_DUE_LATER, TW_DUE_SOON, TW_DUE_OVERDUE } tw_due_status;
 

@@ -19,10 +19,12 @@ typedef struct {
     tw_diags diags;
     int site_bad;       /* the site file had errors */
     int unreadable;     /* a file could not be read at all (I/O) */
+    size_t study_errors; /* errors that concern no one bus: they block every bus */
 } tw_study;
 
-/* Load site settings (site_path may be NULL: defaults) and results, group and validate.
- * Returns 0 when everything could be read (findings may still hold errors), -1 when a file was
+/* Load site settings (site_path may be NULL: defaults) and results, group and validate, then
+ * attribute every error to the buses it blocks (tw_bus_set_attribute): from then on
+ * tw_bus_errors() is the one test of whether a bus may be posted, for every command. Returns 0 when everything could be read (findings may still hold errors), -1 when a file was
  * unreadable, malformed beyond use, or memory ran out. */
 int tw_study_load(tw_study *s, const char *results_path, const char *site_path);
 

@@ -17,6 +17,7 @@
 
 #include "rules/tw_label.h"
 #include "write/tw_layout.h"
+#include "base/tw_exit.h"
 #include "write/tw_qr.h"
 #include "read/tw_site.h"
 
@@ -26,6 +27,13 @@ typedef struct tw_label_doc tw_label_doc;
  * gives the same bytes. NULL with a message in err on failure. */
 tw_label_doc *tw_label_doc_new(const tw_layout *layout, const tw_site *site,
                                const char *creation_date, char *err, size_t errlen);
+
+/* The same, and on failure *status says whose it is: TW_EXIT_DATA when the site's texts do
+ * not fit the layout (the cautions, the fixed texts: bad data), TW_EXIT_IO otherwise (fonts,
+ * memory). */
+tw_label_doc *tw_label_doc_new_status(const tw_layout *layout, const tw_site *site,
+                                      const char *creation_date, int *status, char *err,
+                                      size_t errlen);
 
 /* Draw one label. Returns its 1-based page number, or -1 with a message in err (nothing of
  * the label is kept on failure only when it was alone on its page). */

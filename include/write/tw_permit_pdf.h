@@ -47,6 +47,12 @@ int tw_permit_no_ppe_adequate(const tw_label *l);
  * message in err (nothing written). */
 int tw_permit_write(const tw_permit *p, const char *path, char *err, size_t errlen);
 
+/* The same into tmp, a temporary file for path from tw_atomic_tmp_path(), which the caller
+ * publishes (tw_atomic_publish) or removes: a batch publishes its permits only when every one
+ * of them is written. path names the output in messages. */
+int tw_permit_write_tmp(const tw_permit *p, const char *tmp, const char *path, char *err,
+                        size_t errlen);
+
 /* The file name for a job's permit: "permit-WORKORDER.pdf" with every character other than
  * ASCII letters, digits, '-', '_' and '.' replaced by '_' (no leading dot, no "..", so the
  * name stays inside its directory), or "permit-job-N.pdf" (N = index + 1) when the work order

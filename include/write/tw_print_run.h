@@ -1,15 +1,21 @@
 /*
  * tw_print.h - the lay-out and write stages for a batch of derived labels: QR payloads with the
- * revision each label will carry, the PDF (written atomically), then the manifest.
+ * revision each label will carry, the PDF (written atomically), then the registry.
  *
- * Drafts (label->draft) are drawn watermarked and are never recorded in the manifest: they are
- * not for posting. The PDF is written before the manifest; if the PDF cannot be written the
- * manifest is left as it was.
+ * Change control comes first: a label whose hazard is lower than its current revision's
+ * (tw_hazard_lowered) is refused with TW_EXIT_IO (refused on safety grounds) and nothing is
+ * drawn or written, unless approved_by names who approved it (recorded with reason).
+ *
+ * Drafts (label->draft) are drawn watermarked and are never recorded in the registry: they are
+ * not for posting. The volumes are written in full, staged under pending names journaled in
+ * the registry, then recorded and renamed into place (tw_registry.h): a run killed at any
+ * instant leaves the registry and the PDFs it names in agreement once the registry is next
+ * opened.
  *
  * Volumes: libharu holds a whole document in memory until it is written, so a large batch is
  * split into volumes of TW_DEFAULT_VOLUME_SIZE labels (or as many as the caller asks): "NAME.pdf" becomes
  * "NAME-001.pdf", "NAME-002.pdf", ... (a batch that fits one volume keeps "NAME.pdf"). The
- * manifest records each label's file, volume and page. Every volume is written to a temporary
+ * registry records each label's file, volume and page. Every volume is written to a temporary
  * file first; only when all are written are they renamed into place, in order, so a failed run
  * leaves no volume behind (a rename failing part-way, which only a failing disk does, leaves the
  * volumes before it in place). Volumes left by an earlier, larger run are not removed.
@@ -26,11 +32,14 @@
 
 typedef struct {
     const char *out_pdf;
-    const char *manifest_path;  /* NULL: tw_manifest_path_for(out_pdf) */
+    const char *registry_path;  /* the site's registry (tw_registry.h); required */
     const char *print_date;     /* YYYY-MM-DD, also the PDF's dates */
     const tw_layout *layout;
     const tw_site *site;
     const char *reason;         /* why new revisions were made; NULL for a plain print */
+    const char *approved_by;    /* who approved a lowered hazard; NULL: such a label is refused */
+    const char *const *removed; /* equipment IDs to mark removed with this run (diff --out) */
+    size_t removed_count;
 } tw_print_opts;
 
 /* Labels per volume unless told otherwise: peak memory stays bounded however many labels a run
@@ -60,8 +69,5 @@ int tw_print_labels_jobs(const tw_label *labels, size_t n, const tw_print_opts *
 /* "DIR/NAME-007.pdf" for "DIR/NAME.pdf" and volume 7 (fresh string), NULL when out of
  * memory. */
 char *tw_volume_path(const char *pdf_path, size_t volume);
-
-/* "DIR/NAME.manifest.json" for "DIR/NAME.pdf" (fresh string), NULL when out of memory. */
-char *tw_manifest_path_for(const char *pdf_path);
 
 #endif

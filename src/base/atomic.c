@@ -7,6 +7,7 @@
 #include <libgen.h>
 #include <signal.h>
 #include <stdlib.h>
+#include <stdint.h>
 #include <string.h>
 #include <sys/stat.h>
 #include <unistd.h>
@@ -144,7 +145,8 @@ int tw_output_replaceable(const char *target, char *err, size_t errlen)
 }
 
 /* 1 when the regular file at path begins as a label record does: a JSON object whose "format"
- * is TW_LABEL_RECORD_FORMAT within its first bytes. */
+ * is TW_LABEL_RECORD_FORMAT within its first bytes, or an SQLite database whose header carries
+ * the registry's application_id (big-endian at byte 68 of the SQLite file format). */
 static int is_label_record(const char *path)
 {
     int fd = open(path, O_RDONLY | O_CLOEXEC | O_NONBLOCK);
@@ -156,6 +158,11 @@ static int is_label_record(const char *path)
     if (n <= 0)
         return 0;
     head[n] = '\0';
+    const unsigned char *u = (const unsigned char *)head;
+    if (n >= 72 && memcmp(head, "SQLite format 3", 16) == 0 &&
+        ((uint32_t)u[68] << 24 | (uint32_t)u[69] << 16 | (uint32_t)u[70] << 8 | u[71]) ==
+            TW_REGISTRY_APP_ID)
+        return 1;
     const char *p = head;
     while (*p == ' ' || *p == '\t' || *p == '\n' || *p == '\r')
         p++;

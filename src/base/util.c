@@ -164,43 +164,6 @@ int tw_parse_double(const char *s, double *out)
     return 0;
 }
 
-size_t tw_json_value_bound(const char *data, size_t len)
-{
-    size_t n = 1;
-    int in_string = 0;
-    for (size_t i = 0; i < len; i++) {
-        char c = data[i];
-        if (in_string) {
-            if (c == '\\')
-                i++;
-            else if (c == '"')
-                in_string = 0;
-        } else if (c == '"') {
-            in_string = 1;
-        } else if (c == '[' || c == '{' || c == ',') {
-            n++;
-        }
-    }
-    return n;
-}
-
-size_t tw_json_find_nul(const char *s, size_t len)
-{
-    for (size_t i = 0; i < len; i++) {
-        if (s[i] == '\0')
-            return i;
-        if (s[i] != '\\')
-            continue;
-        size_t j = i; /* an odd run of backslashes escapes what follows */
-        while (j < len && s[j] == '\\')
-            j++;
-        if ((j - i) % 2 == 1 && len - j >= 5 && s[j] == 'u' && memcmp(s + j + 1, "0000", 4) == 0)
-            return j - 1;
-        i = j - 1;
-    }
-    return len;
-}
-
 int tw_strcaseeq(const char *a, const char *b)
 {
     for (; *a && *b; a++, b++)

@@ -1,7 +1,8 @@
 /* cmd_diff.c - `tagwright diff OLD NEW`: what changed between two study revisions, compared
  * by equipment ID on the label content each would print (not on raw columns): added, removed,
  * changed (field by field), unchanged. --out prints the labels of the added and changed buses
- * (the reprint batch) and records them in the manifest as new revisions.
+ * (the reprint batch) and records them in the registry as new revisions; buses in OLD and
+ * absent from NEW are marked removed there (the take-down list).
  *
  * study_id, study_date and review_due are left out of the comparison: they change for every
  * bus with every study, and a label whose hazard content is unchanged stays accurate.
@@ -18,21 +19,26 @@
 #include "base/tw_date.h"
 #include "rules/tw_lifecycle.h"
 #include "write/tw_print_run.h"
+#include "write/tw_registry.h"
 #include "rules/tw_study.h"
 #include "base/tw_util.h"
 
 static const char diff_usage[] =
     "usage: tagwright diff OLD NEW [--site SITE.json] [--format text|json]\n"
-    "                      [--out labels.pdf [--manifest M.json] [--reason TEXT]]\n"
+    "                      [--out labels.pdf [--manifest REG] [--reason TEXT]\n"
+    "                       [--approved-by NAME]]\n"
     "                      [--layout NAME|FILE] [--date YYYY-MM-DD] [--columns MAP.json]\n"
     "  OLD, NEW    two study results files (CSV or JSON), compared by equipment ID\n"
     "  --format    text (default) or json, on standard output\n"
     "  --out       print labels for the added and changed buses only (the reprint batch)\n"
-    "  --manifest  record them there as new revisions (default: beside the PDF)\n"
+    "  --manifest  the label registry (default: site.json \"registry\"): the batch is recorded\n"
+    "              as new revisions and buses absent from NEW are marked removed\n"
+    "  --approved-by  who approved revisions that lower the hazard (refused without it)\n"
     "study_id, study_date and review_due are not compared: they change with every study.\n";
 
 typedef struct {
-    const char *old_path, *new_path, *site, *out, *manifest, *layout, *reason, *columns;
+    const char *old_path, *new_path, *site, *out, *manifest, *layout, *reason, *approved_by;
+    const char *columns;
     int json;
     char date[11];
 } diff_args;
@@ -45,6 +51,7 @@ static int parse_args(int argc, char **argv, diff_args *a)
         {"reason", required_argument, NULL, 'r'}, {"layout", required_argument, NULL, 'l'},
         {"date", required_argument, NULL, 't'},   {"help", no_argument, NULL, 'h'},
         {"columns", required_argument, NULL, 'C'},
+        {"approved-by", required_argument, NULL, 'A'},
         {NULL, 0, NULL, 0},
     };
     memset(a, 0, sizeof *a);
@@ -63,6 +70,7 @@ static int parse_args(int argc, char **argv, diff_args *a)
         case 'o': a->out = optarg; break;
         case 'm': a->manifest = optarg; break;
         case 'r': a->reason = optarg; break;
+        case 'A': a->approved_by = optarg; break;
         case 'l': a->layout = optarg; break;
         case 't':
             if (tw_option_date(optarg, a->date) != 0)
@@ -74,12 +82,12 @@ static int parse_args(int argc, char **argv, diff_args *a)
     }
     if (optind != argc - 2)
         return tw_usage_error("diff", "expected two results files, OLD and NEW");
-    if ((a->manifest || a->reason) && !a->out)
-        return tw_usage_error("diff", "--manifest and --reason record printed labels; give "
-                              "--out as well");
+    if ((a->manifest || a->reason || a->approved_by) && !a->out)
+        return tw_usage_error("diff", "--manifest, --reason and --approved-by record printed "
+                              "labels; give --out as well");
     a->old_path = argv[optind];
     a->new_path = argv[optind + 1];
-    return 0;
+    return a->approved_by ? tw_approval_ok("diff", a->approved_by, a->reason) : 0;
 }
 
 /* ---- one side: a study and the label of every bus ----------------------------------------- */
@@ -312,52 +320,83 @@ static int print_json(const diff_args *a, const side *o, const side *nw, const c
 
 /* ---- the reprint batch -------------------------------------------------------------------- */
 
+/* Buses absent from NEW leave the registry as removed without a label to print. */
+static int record_removed_only(const diff_args *a, const char *registry, const char *const *removed,
+                               size_t n, const char *reason)
+{
+    char err[1024] = "";
+    tw_registry reg;
+    int rc = tw_registry_open(&reg, registry, 1, err, sizeof err);
+    if (rc == TW_EXIT_OK)
+        rc = tw_registry_remove(&reg, removed, n, a->date, reason, err, sizeof err);
+    tw_registry_close(&reg);
+    if (rc != TW_EXIT_OK)
+        fprintf(stderr, "tagwright diff: %s\n", err);
+    return rc;
+}
+
 static int print_batch(const diff_args *a, side *nw, const side *o, const comparison *c)
 {
     char err[1024] = "";
-    const char *inputs[] = {a->old_path, a->new_path, a->site, a->manifest, a->layout};
-    if (tw_output_path_ok_n(a->out, inputs, 5, err, sizeof err) != 0) {
+    const char *inputs[] = {a->old_path, a->new_path, a->site, a->manifest, a->layout,
+                            nw->st.site.registry};
+    if (tw_output_path_ok_n(a->out, inputs, 6, err, sizeof err) != 0) {
         fprintf(stderr, "tagwright diff: %s\n", err);
         return TW_EXIT_IO;
     }
-    if (c->count[K_ERRORS]) {
-        fprintf(stderr, "tagwright diff: %zu bus%s in %s with errors; no labels written\n",
-                c->count[K_ERRORS], c->count[K_ERRORS] == 1 ? "" : "es", a->new_path);
+    if (c->count[K_ERRORS] || nw->st.study_errors) {
+        fprintf(stderr, "tagwright diff: %zu bus%s in %s with errors%s; no labels written\n",
+                c->count[K_ERRORS], c->count[K_ERRORS] == 1 ? "" : "es", a->new_path,
+                nw->st.study_errors ? ", and errors that concern no one bus" : "");
         return TW_EXIT_DATA;
     }
-    size_t n = c->count[K_ADDED] + c->count[K_CHANGED];
-    if (n == 0) {
-        fprintf(stderr, "tagwright diff: nothing added or changed; %s not written\n", a->out);
-        return TW_EXIT_OK;
-    }
-    tw_label *batch = calloc(n, sizeof *batch);
+    size_t n = c->count[K_ADDED] + c->count[K_CHANGED], nremoved = c->count[K_REMOVED];
+    tw_label *batch = calloc(n ? n : 1, sizeof *batch);
+    const char **removed = calloc(nremoved ? nremoved : 1, sizeof *removed);
     tw_layout layout = {0};
     char *reason = a->reason ? tw_strdup(a->reason)
                              : tw_asprintf("study revision %s -> %s", side_value(o, TW_L_STUDY_ID),
                                            side_value(nw, TW_L_STUDY_ID));
+    char *registry = n || nremoved ? tw_registry_choose("diff", a->manifest, &nw->st.site, a->out)
+                                   : NULL;
     int rc = TW_EXIT_IO;
-    if (!batch || !reason) {
+    if (!batch || !removed || !reason || ((n || nremoved) && !registry)) {
         snprintf(err, sizeof err, "out of memory");
         goto done;
     }
-    size_t m = 0;
-    for (size_t i = 0; i < c->n; i++)
+    size_t m = 0, r = 0;
+    for (size_t i = 0; i < c->n; i++) {
         if (c->e[i].k == K_ADDED || c->e[i].k == K_CHANGED)
             batch[m++] = *c->e[i].nl;    /* shallow: the side owns the strings */
+        else if (c->e[i].k == K_REMOVED)
+            removed[r++] = c->e[i].id;
+    }
+    if (n == 0) {
+        fprintf(stderr, "tagwright diff: nothing added or changed; %s not written\n", a->out);
+        rc = nremoved ? record_removed_only(a, registry, removed, nremoved, reason) : TW_EXIT_OK;
+        if (rc == TW_EXIT_OK && nremoved)
+            fprintf(stderr, "%s: %zu bus%s marked removed\n", registry, nremoved,
+                    nremoved == 1 ? "" : "es");
+        goto done;
+    }
     if (tw_batch_layout(a->layout, &nw->st.site, &layout, &nw->st.diags) != 0) {
         tw_diags_print(&nw->st.diags, stderr);
         rc = TW_EXIT_DATA;
         goto done;
     }
-    tw_print_opts po = {a->out, a->manifest, a->date, &layout, &nw->st.site, reason};
+    tw_print_opts po = {a->out, registry, a->date, &layout, &nw->st.site, reason,
+                        a->approved_by, removed, nremoved};
     rc = tw_print_labels(batch, m, &po, err, sizeof err);
     if (rc == TW_EXIT_OK)
-        fprintf(stderr, "%s: %zu label%s (added and changed)\n", a->out, m, m == 1 ? "" : "s");
+        fprintf(stderr, "%s: %zu label%s (added and changed); %zu bus%s marked removed\n", a->out,
+                m, m == 1 ? "" : "s", nremoved, nremoved == 1 ? "" : "es");
 done:
     if (rc != TW_EXIT_OK && err[0])
         fprintf(stderr, "tagwright diff: %s\n", err);
     free(batch);
+    free(removed);
     free(reason);
+    free(registry);
     tw_layout_free(&layout);
     return rc;
 }
@@ -397,7 +436,7 @@ int cmd_diff(int argc, char **argv)
         print_text(&a, &o, &nw, &c);
     if (rc == TW_EXIT_OK && a.out)
         rc = print_batch(&a, &nw, &o, &c);
-    int any_errors = c.count[K_ERRORS] > 0;
+    int any_errors = c.count[K_ERRORS] > 0 || o.st.study_errors || nw.st.study_errors;
     for (size_t i = 0; i < c.n; i++)
         any_errors |= c.e[i].old_bad;
     if (rc == TW_EXIT_OK && any_errors)

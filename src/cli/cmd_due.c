@@ -159,7 +159,7 @@ static int run(tw_study *st, const due_args *a)
     char on[11];
     tw_date_format(a->on, on);
     printf("review due dates on %s: study date + %d years (NFPA 70E 130.5(G)); within %ld "
-           "day%s\n", on, TW_REVIEW_INTERVAL_YEARS, a->within, a->within == 1 ? "" : "s");
+           "day%s\n", on, TW_REVIEW_YEARS, a->within, a->within == 1 ? "" : "s");
     for (size_t i = 0; i < m; i++)
         if (a->all || items[i].status != TW_DUE_LATER)
             print_item(&items[i]);

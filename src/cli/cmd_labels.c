@@ -1,5 +1,5 @@
 /* cmd_labels.c - `tagwright labels RESULTS --out labels.pdf`: one posting label per bus, from the
- * worst case across its scenarios, plus the manifest beside the PDF.
+ * worst case across its scenarios, recorded in the site's registry.
  *
  * Fails closed: if any selected bus has an error, nothing is written (exit 1) unless --draft,
  * which prints watermarked drafts for those buses instead. */
@@ -19,11 +19,14 @@
 #include "base/tw_util.h"
 
 static const char labels_usage[] =
-    "usage: tagwright labels RESULTS [--site SITE.json] [--out labels.pdf] [--manifest M.json]\n"
+    "usage: tagwright labels RESULTS [--site SITE.json] [--out labels.pdf] [--manifest REG]\n"
     "                        [--bus ID]... [--draft] [--layout NAME|FILE] [--date YYYY-MM-DD]\n"
-    "                        [--volume-size N] [--jobs N] [--columns MAP.json]\n"
+    "                        [--volume-size N] [--jobs N] [--reason TEXT]\n"
+    "                        [--approved-by NAME --reason TEXT] [--columns MAP.json]\n"
     "  --out       PDF to write (default labels.pdf); written only if every label can be made\n"
-    "  --manifest  record of printed labels (default: beside the PDF, NAME.manifest.json)\n"
+    "  --manifest  the label registry to record in (default: site.json \"registry\")\n"
+    "  --approved-by  who approved labels that lower the hazard (refused without it)\n"
+    "  --reason    why these revisions were made; recorded with them\n"
     "  --bus       print only this equipment ID (repeatable)\n"
     "  --draft     print buses with errors as watermarked drafts, not for posting\n"
     "  --layout    shipped layout name or layout file (default 4x6)\n"
@@ -34,7 +37,8 @@ static const char labels_usage[] =
     "              processor, at most 4); the output is the same whatever the number\n";
 
 typedef struct {
-    const char *results, *site, *out, *manifest, *layout, *columns;
+    const char *results, *site, *out, *manifest, *layout, *reason, *approved_by;
+    const char *columns;
     const char **buses;
     size_t bus_count;
     int draft;
@@ -80,6 +84,7 @@ static int parse_args(int argc, char **argv, labels_args *a)
         {"date", required_argument, NULL, 't'},   {"help", no_argument, NULL, 'h'},
         {"volume-size", required_argument, NULL, 'V'}, {"jobs", required_argument, NULL, 'j'},
         {"columns", required_argument, NULL, 'C'},
+        {"reason", required_argument, NULL, 'r'}, {"approved-by", required_argument, NULL, 'A'},
         {NULL, 0, NULL, 0},
     };
     memset(a, 0, sizeof *a);
@@ -96,6 +101,8 @@ static int parse_args(int argc, char **argv, labels_args *a)
         case 'C': a->columns = optarg; break;
         case 'o': a->out = optarg; break;
         case 'm': a->manifest = optarg; break;
+        case 'r': a->reason = optarg; break;
+        case 'A': a->approved_by = optarg; break;
         case 'b': a->buses[a->bus_count++] = optarg; break;
         case 'd': a->draft = 1; break;
         case 'l': a->layout = optarg; break;
@@ -118,11 +125,12 @@ static int parse_args(int argc, char **argv, labels_args *a)
     if (optind != argc - 1)
         return tw_usage_error("labels", "expected one results file (CSV or JSON)");
     a->results = argv[optind];
-    return 0;
+    return tw_approval_ok("labels", a->approved_by, a->reason);
 }
 
 /* The buses to print: all, or those named with --bus (an unknown ID is an error finding). */
-static const tw_bus **select_buses(tw_study *st, const labels_args *a, size_t *n)
+static const tw_bus **select_buses(tw_study *st, const labels_args *a, size_t *n,
+                                   size_t *unknown)
 {
     size_t want = a->bus_count ? a->bus_count : st->buses.count;
     const tw_bus **sel = calloc(want ? want : 1, sizeof *sel);
@@ -132,9 +140,12 @@ static const tw_bus **select_buses(tw_study *st, const labels_args *a, size_t *n
     for (size_t i = 0; i < want; i++) {
         const tw_bus *b = a->bus_count ? tw_bus_set_find(&st->buses, a->buses[i])
                                        : &st->buses.buses[i];
-        if (b)
+        int again = 0; /* --bus X given twice prints one label */
+        for (size_t k = 0; a->bus_count && b && k < *n; k++)
+            again |= sel[k] == b;
+        if (b && !again)
             sel[(*n)++] = b;
-        else
+        else if (!b && ++*unknown)
             fprintf(stderr, "%s: error: %s: equipment_id: --bus names equipment that is not in "
                     "the results\n", a->results, a->buses[i]);
     }
@@ -181,13 +192,14 @@ static int run(tw_study *st, const labels_args *a)
     char err[1024] = "";
     /* Every file the run reads or writes besides the PDF. The layout is a file only when it
      * names one; a shipped name never clashes. */
-    const char *inputs[] = {a->results, a->site, a->manifest, a->layout};
-    if (tw_output_path_ok_n(a->out, inputs, 4, err, sizeof err) != 0) {
+    const char *inputs[] = {a->results, a->site, a->manifest, a->layout, st->site.registry};
+    if (tw_output_path_ok_n(a->out, inputs, 5, err, sizeof err) != 0) {
         fprintf(stderr, "tagwright labels: %s\n", err);
         return TW_EXIT_IO;
     }
-    size_t n = 0;
-    const tw_bus **sel = select_buses(st, a, &n);
+    char *registry = NULL;
+    size_t n = 0, unknown_bus = 0;
+    const tw_bus **sel = select_buses(st, a, &n, &unknown_bus);
     tw_label *labels = calloc(n ? n : 1, sizeof *labels);
     tw_layout layout = {0};
     int rc = TW_EXIT_IO;
@@ -199,7 +211,7 @@ static int run(tw_study *st, const labels_args *a)
     int layout_bad = tw_batch_layout(a->layout, &st->site, &layout, &st->diags) != 0;
     tw_diags_sort(&st->diags);
     print_findings(&st->diags, sel, n, a->bus_count == 0);
-    if (refused || layout_bad || (a->bus_count && n < a->bus_count)) {
+    if (refused || layout_bad || unknown_bus) {
         if (refused)
             fprintf(stderr, "tagwright labels: %zu bus%s with errors; no labels written (fix the "
                     "data, or use --draft for watermarked drafts not for posting)\n",
@@ -218,13 +230,16 @@ static int run(tw_study *st, const labels_args *a)
     tw_results_free(&st->results);
     free(sel);
     sel = NULL;
-    tw_print_opts po = {a->out, a->manifest, a->date, &layout, &st->site, NULL};
+    registry = tw_registry_choose("labels", a->manifest, &st->site, a->out);
+    tw_print_opts po = {a->out, registry, a->date, &layout, &st->site, a->reason,
+                        a->approved_by, NULL, 0};
     rc = tw_print_labels_jobs(labels, n, &po, a->volume_size, a->jobs, err, sizeof err);
     if (rc != TW_EXIT_OK)
         fprintf(stderr, "tagwright labels: %s\n", err);
     else
         print_written(a, n);
 done:
+    free(registry);
     for (size_t i = 0; labels && i < n; i++)
         tw_label_free(&labels[i]);
     free(labels);

@@ -4,7 +4,12 @@
  *
  * Every job is checked before anything is written: an unknown equipment ID, a bus with data
  * errors or a bad job file refuses the whole run (exit 1, no file). A permit for equipment where
- * no PPE level is adequate is still drafted and says so, and the run exits 3. */
+ * no PPE level is adequate is still drafted and says so, and the run exits 3.
+ *
+ * With the site's registry (site.json "registry", or --manifest), a permit shows the label
+ * posted on the equipment: the current revision's values and QR payload. When the results now
+ * derive different content for that bus, or no label is recorded for it, the run is refused
+ * (exit 3, nothing written): a permit never shows values other than the posted label's. */
 #include <errno.h>
 #include <getopt.h>
 #include <stdio.h>
@@ -19,6 +24,7 @@
 #include "read/tw_job.h"
 #include "rules/tw_label.h"
 #include "write/tw_manifest.h"
+#include "write/tw_registry.h"
 #include "write/tw_permit_pdf.h"
 #include "write/tw_qr.h"
 #include "rules/tw_study.h"
@@ -26,17 +32,19 @@
 
 static const char permit_usage[] =
     "usage: tagwright permit RESULTS --job JOB.json [--site SITE.json] [--out PATH]\n"
-    "                        [--manifest M.json] [--date YYYY-MM-DD] [--paper letter|a4]\n"
+    "                        [--manifest REG] [--date YYYY-MM-DD] [--paper letter|a4]\n"
     "                        [--columns MAP.json]\n"
     "  --job       job file: one job object, or an array of jobs (a batch)\n"
     "  --out       one job: the PDF to write (default permit-WORKORDER.pdf);\n"
     "              a batch: the directory for permit-WORKORDER.pdf files (default .)\n"
-    "  --manifest  the labels manifest: the QR code names the posted label's revision\n"
-    "              (without it, revision 1 is assumed)\n"
+    "  --manifest  the label registry (default: site.json \"registry\"): the permit shows the\n"
+    "              posted label's values and QR code, and is refused when the results now\n"
+    "              say something else (without a registry, revision 1 is assumed)\n"
     "  --date      drafting date on the permit and in the PDF (default today, UTC)\n"
     "  --paper     page size (default letter)\n"
-    "exit status: 0 written; 1 bad data (nothing written); 2 usage; 3 I/O error, or a permit\n"
-    "drafted for equipment where no PPE the site stocks is adequate\n";
+    "exit status: 0 written; 1 bad data (nothing written); 2 usage; 3 I/O error, refused (the\n"
+    "posted label differs from the results), or a permit drafted for equipment where no PPE\n"
+    "the site stocks is adequate\n";
 
 typedef struct {
     const char *results, *job, *site, *out, *manifest, *columns;
@@ -105,8 +113,8 @@ typedef struct {
     const permit_args *a;
     tw_study *st;
     tw_jobs jobs;
-    tw_manifest manifest;
-    int have_manifest;
+    tw_registry registry;
+    char *registry_path;        /* NULL: no registry named */
     draft *drafts;
 } run_state;
 
@@ -188,7 +196,7 @@ static int choose_paths(run_state *R)
 static int choose_paths_in(run_state *R, const char *dir)
 {
     const permit_args *a = R->a;
-    const char *inputs[] = {a->results, a->job, a->site, a->manifest};
+    const char *inputs[] = {a->results, a->job, a->site, R->registry_path};
     for (size_t i = 0; i < R->jobs.count; i++) {
         draft *dr = &R->drafts[i];
         char *name = tw_permit_file_name(dr->job->work_order, i);
@@ -221,81 +229,163 @@ oom:
     return TW_EXIT_IO;
 }
 
-static int load_manifest(run_state *R)
+static int open_registry(run_state *R)
 {
-    if (!R->a->manifest)
+    R->registry_path = tw_registry_choose("permit", R->a->manifest, &R->st->site, NULL);
+    if (!R->registry_path) {
+        fprintf(stderr, "tagwright permit: warning: no registry named (site.json \"registry\" or "
+                "--manifest): the permits are not checked against the posted labels and name "
+                "revision 1\n");
         return TW_EXIT_OK;
+    }
     char err[1024];
-    size_t len = 0;
-    char *data = tw_read_file(R->a->manifest, &len, err, sizeof err);
-    if (!data) {
+    int rc = tw_registry_open(&R->registry, R->registry_path, 0, err, sizeof err);
+    if (rc != TW_EXIT_OK)
+        fprintf(stderr, "tagwright permit: %s\n", err);
+    return rc;
+}
+
+/* The posted label: its revision and payload from the registry, refused (exit 3) when the
+ * results now derive other content or none is recorded. Without a registry, revision 1. */
+static int match_posted(run_state *R, draft *dr)
+{
+    const char *eq = dr->label.value[TW_L_EQUIPMENT_ID];
+    if (!R->registry_path) {
+        dr->revision = 1;
+        dr->payload = tw_qr_payload(R->st->site.record_link, dr->label.value[TW_L_STUDY_ID], eq,
+                                    1, dr->label.hash);
+        return dr->payload ? TW_EXIT_OK : TW_EXIT_IO;
+    }
+    tw_revision cur = {0};
+    char err[1024];
+    int found = tw_registry_current(&R->registry, eq, &cur, err, sizeof err);
+    if (found < 0 || found > 1) {
         fprintf(stderr, "tagwright permit: %s\n", err);
         return TW_EXIT_IO;
     }
-    tw_diags d;
-    tw_diags_init(&d);
-    int rc = tw_manifest_load_mem(R->a->manifest, data, len, &R->manifest, &d);
-    free(data);
-    tw_diags_print(&d, stderr);
-    tw_diags_free(&d);
-    if (rc != 0) {
-        tw_manifest_close(&R->manifest);
-        return TW_EXIT_DATA;
+    int rc = TW_EXIT_OK;
+    if (!found) {
+        fprintf(stderr, "tagwright permit: %s: refused: no posted label for %s is recorded in %s; "
+                "print and post its label first (tagwright labels --bus %s)\n",
+                dr->job->work_order ? dr->job->work_order : eq, eq, R->registry_path, eq);
+        rc = TW_EXIT_IO;
+    } else if (!cur.content_hash || strcmp(cur.content_hash, dr->label.hash) != 0) {
+        char *content = tw_label_canonical(&dr->label);
+        char *changes = content ? tw_manifest_changes(cur.content, content) : NULL;
+        fprintf(stderr, "tagwright permit: %s: refused: %s now derives content other than the "
+                "posted label of %s (revision %d, printed %s): %s. Post a label of the current "
+                "study first (tagwright labels --bus %s, with --approved-by if it lowers the "
+                "hazard), or draft the permit from the results the posted label came from\n",
+                dr->job->work_order ? dr->job->work_order : eq, R->a->results, eq, cur.revision,
+                cur.printed ? cur.printed : "?", changes && *changes ? changes : "(see diff)", eq);
+        free(content);
+        free(changes);
+        rc = TW_EXIT_IO;
+    } else {
+        dr->revision = cur.revision;
+        dr->payload = cur.payload ? tw_strdup(cur.payload)
+                                  : tw_qr_payload(R->st->site.record_link,
+                                                  dr->label.value[TW_L_STUDY_ID], eq,
+                                                  cur.revision, dr->label.hash);
+        if (!dr->payload)
+            rc = TW_EXIT_IO;
     }
-    R->have_manifest = 1;
-    return TW_EXIT_OK;
+    tw_revision_free(&cur);
+    return rc;
 }
 
-/* The QR payload of the posted label: its revision from the manifest (the revision the next
- * print of this content would get), 1 without one. */
-static int make_payload(run_state *R, draft *dr)
-{
-    const char *eq = dr->label.value[TW_L_EQUIPMENT_ID];
-    dr->revision = 1;
-    if (R->have_manifest) {
-        dr->revision = tw_manifest_next_revision(&R->manifest, eq, dr->label.hash);
-        const tw_manifest_entry *cur = tw_manifest_current(&R->manifest, eq);
-        if (!cur)
-            fprintf(stderr, "tagwright permit: warning: %s has no label in %s; the permit names "
-                    "revision %d, the first print\n", eq, R->a->manifest, dr->revision);
-        else if (!cur->content_hash || strcmp(cur->content_hash, dr->label.hash) != 0)
-            fprintf(stderr, "tagwright permit: warning: the posted label of %s (revision %d) "
-                    "says something other than this study; the permit names revision %d: "
-                    "reprint the label before the work\n", eq, cur->revision, dr->revision);
-    }
-    dr->payload = tw_qr_payload(R->st->site.record_link, dr->label.value[TW_L_STUDY_ID], eq,
-                                dr->revision, dr->label.hash);
-    return dr->payload ? 0 : -1;
-}
-
-static int write_all(run_state *R)
+static int match_all(run_state *R)
 {
     int rc = TW_EXIT_OK;
     for (size_t i = 0; i < R->jobs.count; i++) {
-        draft *dr = &R->drafts[i];
-        char err[1024] = "";
-        if (make_payload(R, dr) != 0) {
-            fprintf(stderr, "tagwright permit: out of memory\n");
-            return TW_EXIT_IO;
+        int r = match_posted(R, &R->drafts[i]);
+        if (r != TW_EXIT_OK)
+            rc = r;
+    }
+    if (rc != TW_EXIT_OK)
+        fprintf(stderr, "tagwright permit: no permit written\n");
+    return rc;
+}
+
+/* The line for a written permit, and the note when no PPE level is adequate. */
+static int report_written(const draft *dr, int pages)
+{
+    const char *eq = dr->label.value[TW_L_EQUIPMENT_ID];
+    printf("%s: %d page%s, %s, label revision %d\n", dr->path, pages, pages == 1 ? "" : "s",
+           eq, dr->revision);
+    if (tw_permit_no_ppe_adequate(&dr->label))
+        fprintf(stderr, "tagwright permit: %s: no PPE level at this site is adequate for %s "
+                "(minimum arc rating %s); the draft says energized work should not be "
+                "performed\n", dr->path, eq, dr->label.value[TW_L_MIN_ARC_RATING]
+                ? dr->label.value[TW_L_MIN_ARC_RATING] : "unknown");
+    return TW_EXIT_OK;
+}
+
+/* Remove the temporary files of a batch that will not be published. */
+static void drop_tmps(char **tmps, size_t n)
+{
+    for (size_t i = 0; i < n; i++)
+        if (tmps[i]) {
+            unlink(tmps[i]);
+            tw_atomic_forget(tmps[i]);
+            free(tmps[i]);
         }
+    free(tmps);
+}
+
+/* Every permit is written to its temporary file first and published only when all are
+ * written: a batch is all or nothing (a full disk after the first permit leaves none). */
+static int write_all(run_state *R)
+{
+    size_t n = R->jobs.count;
+    char **tmps = calloc(n ? n : 1, sizeof *tmps);
+    int *pages = calloc(n ? n : 1, sizeof *pages);
+    char err[1024] = "";
+    int rc = TW_EXIT_OK;
+    if (!tmps || !pages) {
+        fprintf(stderr, "tagwright permit: out of memory\n");
+        free(pages);
+        free(tmps);
+        return TW_EXIT_IO;
+    }
+    for (size_t i = 0; i < n && rc == TW_EXIT_OK; i++) {
+        draft *dr = &R->drafts[i];
         tw_permit p = {dr->job, &dr->label, dr->bus, &R->st->site, dr->payload, dr->revision,
                        R->a->date, R->a->paper};
-        int pages = tw_permit_write(&p, dr->path, err, sizeof err);
-        if (pages < 0) {
-            fprintf(stderr, "tagwright permit: %s: %s\n", dr->path, err);
-            return TW_EXIT_IO;
-        }
-        const char *eq = dr->label.value[TW_L_EQUIPMENT_ID];
-        printf("%s: %d page%s, %s, label revision %d\n", dr->path, pages, pages == 1 ? "" : "s",
-               eq, dr->revision);
-        if (tw_permit_no_ppe_adequate(&dr->label)) {
-            fprintf(stderr, "tagwright permit: %s: no PPE level at this site is adequate for %s "
-                    "(minimum arc rating %s); the draft says energized work should not be "
-                    "performed\n", dr->path, eq, dr->label.value[TW_L_MIN_ARC_RATING]
-                    ? dr->label.value[TW_L_MIN_ARC_RATING] : "unknown");
+        if (!(tmps[i] = tw_atomic_tmp_path(dr->path, err, sizeof err)) ||
+            (pages[i] = tw_permit_write_tmp(&p, tmps[i], dr->path, err, sizeof err)) < 0) {
+            fprintf(stderr, "tagwright permit: %s%s\n", err,
+                    n > 1 ? "; no permit of the batch written" : "");
             rc = TW_EXIT_IO;
         }
     }
+    if (rc != TW_EXIT_OK) {
+        drop_tmps(tmps, n);
+        free(pages);
+        return rc;
+    }
+    tw_atomic_hold_signals();
+    for (size_t i = 0; i < n; i++) {
+        if (rc == TW_EXIT_OK && tw_atomic_publish(tmps[i], R->drafts[i].path, err,
+                                                  sizeof err) != 0) {
+            fprintf(stderr, "tagwright permit: %s\n", err);
+            rc = TW_EXIT_IO;
+        } else if (rc != TW_EXIT_OK) {
+            unlink(tmps[i]);
+            tw_atomic_forget(tmps[i]);
+        }
+        free(tmps[i]);
+        tmps[i] = NULL;
+    }
+    tw_atomic_release_signals();
+    free(tmps);
+    for (size_t i = 0; rc == TW_EXIT_OK && i < n; i++)
+        rc = report_written(&R->drafts[i], pages[i]);
+    if (rc == TW_EXIT_OK)
+        for (size_t i = 0; i < n; i++)
+            if (tw_permit_no_ppe_adequate(&R->drafts[i].label))
+                rc = TW_EXIT_IO;
+    free(pages);
     return rc;
 }
 
@@ -306,7 +396,7 @@ static int run(run_state *R)
         fprintf(stderr, "tagwright permit: out of memory\n");
         return TW_EXIT_IO;
     }
-    int rc = load_manifest(R);
+    int rc = open_registry(R);
     if (rc != TW_EXIT_OK)
         return rc;
     size_t refused = derive_all(R);
@@ -315,6 +405,9 @@ static int run(run_state *R)
                 refused, R->jobs.count, R->jobs.count == 1 ? "" : "s");
         return TW_EXIT_DATA;
     }
+    rc = match_all(R);
+    if (rc != TW_EXIT_OK)
+        return rc;
     rc = choose_paths(R);
     return rc != TW_EXIT_OK ? rc : write_all(R);
 }
@@ -327,8 +420,8 @@ static void run_free(run_state *R)
         free(R->drafts[i].payload);
     }
     free(R->drafts);
-    if (R->have_manifest)
-        tw_manifest_close(&R->manifest);
+    tw_registry_close(&R->registry);
+    free(R->registry_path);
     tw_jobs_free(&R->jobs);
 }
 
@@ -340,6 +433,7 @@ int cmd_permit(int argc, char **argv)
         return rc < 0 ? TW_EXIT_OK : rc;
     run_state R;
     memset(&R, 0, sizeof R);
+    R.registry.lock_fd = -1;
     R.a = &a;
     tw_diags jd;
     tw_diags_init(&jd);

@@ -26,33 +26,44 @@
 
 static const char reprint_usage[] =
     "usage: tagwright reprint RESULTS --bus ID (--clearing-time S | --incident-energy E)\n"
-    "                         [--site SITE.json] [--out label.pdf] [--manifest M.json]\n"
-    "                         [--reason TEXT] [--layout NAME|FILE] [--date YYYY-MM-DD]\n"
-    "                         [--columns MAP.json]\n"
+    "                         [--site SITE.json] [--out label.pdf] [--manifest REG]\n"
+    "                         [--reason TEXT] [--approved-by NAME] [--layout NAME|FILE]\n"
+    "                         [--date YYYY-MM-DD] [--columns MAP.json]\n"
     "  --bus              the equipment ID whose label is revised\n"
     "  --clearing-time    new clearing time of its protective device, s: the energy of the\n"
     "                     governing scenario is rescaled by new time / study time\n"
     "  --incident-energy  new incident energy, cal/cm2, from a re-run study\n"
     "  --out              PDF to write (default label.pdf)\n"
-    "  --manifest         the record the label is posted in (default: beside the PDF); the\n"
-    "                     revision it holds for the bus is marked superseded\n"
+    "  --manifest         the label registry (default: site.json \"registry\"); the revision it\n"
+    "                     holds for the bus is marked superseded\n"
     "  --reason           why (e.g. a change order number); recorded with the new revision\n"
+    "  --approved-by      who approved a revision that lowers the hazard (refused without it;\n"
+    "                     needs --reason)\n"
     "A re-run study is the proper source of new values; rescaling is an estimate.\n";
 
 typedef struct {
-    const char *results, *site, *out, *manifest, *layout, *bus, *reason, *columns;
+    const char *results, *site, *out, *manifest, *layout, *bus, *reason, *approved_by;
+    const char *columns;
     double clearing_time;       /* 0: not given */
     double incident_energy;     /* 0: not given */
+    const char *given;          /* the option and value as given, for messages */
+    char given_buf[96];
     char date[11];
 } reprint_args;
 
-/* A number option above 0; -1 (usage error printed) otherwise. */
-static int positive_option(const char *name, const char *value, double *out)
+/* A number option of at least min (the value below which the label would print 0: half its
+ * last printed digit, as for the results file, docs/checks.md); -1 (usage error printed)
+ * otherwise. Keeps the option as given for the messages about the values it makes. */
+static int positive_option(reprint_args *a, const char *name, const char *value, double min,
+                           double *out)
 {
-    if (tw_parse_double(value, out) != 0 || !(*out > 0) || !isfinite(*out)) {
-        tw_usage_error("reprint", "--%s: expected a number above 0, got '%s'", name, value);
+    if (tw_parse_double(value, out) != 0 || !(*out >= min) || !isfinite(*out)) {
+        tw_usage_error("reprint", "--%s: expected a number of at least %g (smaller prints as 0 "
+                       "on the label), got '%s'", name, min, value);
         return -1;
     }
+    snprintf(a->given_buf, sizeof a->given_buf, "--%s %s", name, value);
+    a->given = a->given_buf;
     return 0;
 }
 
@@ -65,6 +76,7 @@ static int parse_args(int argc, char **argv, reprint_args *a)
         {"reason", required_argument, NULL, 'r'},    {"layout", required_argument, NULL, 'l'},
         {"date", required_argument, NULL, 't'},      {"help", no_argument, NULL, 'h'},
         {"columns", required_argument, NULL, 'C'},
+        {"approved-by", required_argument, NULL, 'A'},
         {NULL, 0, NULL, 0},
     };
     memset(a, 0, sizeof *a);
@@ -76,11 +88,11 @@ static int parse_args(int argc, char **argv, reprint_args *a)
         switch (c) {
         case 'b': a->bus = optarg; break;
         case 'c':
-            if (positive_option("clearing-time", optarg, &a->clearing_time) != 0)
+            if (positive_option(a, "clearing-time", optarg, 0.0005, &a->clearing_time) != 0)
                 return TW_EXIT_USAGE;
             break;
         case 'e':
-            if (positive_option("incident-energy", optarg, &a->incident_energy) != 0)
+            if (positive_option(a, "incident-energy", optarg, 0.05, &a->incident_energy) != 0)
                 return TW_EXIT_USAGE;
             break;
         case 's': a->site = optarg; break;
@@ -88,6 +100,7 @@ static int parse_args(int argc, char **argv, reprint_args *a)
         case 'o': a->out = optarg; break;
         case 'm': a->manifest = optarg; break;
         case 'r': a->reason = optarg; break;
+        case 'A': a->approved_by = optarg; break;
         case 'l': a->layout = optarg; break;
         case 't':
             if (tw_option_date(optarg, a->date) != 0)
@@ -106,7 +119,7 @@ static int parse_args(int argc, char **argv, reprint_args *a)
     if ((a->clearing_time > 0) == (a->incident_energy > 0))
         return tw_usage_error("reprint", "give exactly one of --clearing-time S (a setting "
                               "change) or --incident-energy E (from a re-run study)");
-    return 0;
+    return tw_approval_ok("reprint", a->approved_by, a->reason);
 }
 
 /* ---- the revised scenario ---------------------------------------------------------------- */
@@ -132,13 +145,8 @@ static void row_error(tw_diags *d, const tw_row *r, const char *eq, tw_field f, 
 /* The distance exponent: the study's, else IEEE 1584-2002 Table 4 for the equipment type. */
 static int exponent_of(const tw_row *g, const char *eq, double *x, tw_diags *d)
 {
-    if (row_number(g, TW_F_DISTANCE_EXPONENT, x) == 0)
-        return 0;
-    double volts = 0;
-    row_number(g, TW_F_NOMINAL_VOLTAGE_V, &volts);
-    const char *type = tw_row_has(g, TW_F_EQUIPMENT_TYPE) ? g->text[TW_F_EQUIPMENT_TYPE] : NULL;
-    *x = tw_distance_exponent_for(type, volts, NULL);
-    if (*x > 0)   /* NAN when the table has no row */
+    *x = tw_row_distance_exponent(g, NULL);
+    if (*x > 0)   /* NAN when neither the study nor the table gives one */
         return 0;
     row_error(d, g, eq, TW_F_DISTANCE_EXPONENT,
               "missing, and IEEE 1584-2002 Table 4 has no exponent for this equipment type and "
@@ -323,10 +331,10 @@ static void print_warnings(const tw_rescale *r, const revised_bus *rb, const tw_
     if (r->warnings & TW_RESCALE_WARN_LONG_TIME)
         warn("new clearing time %g s is above %g s; IEEE 1584 suggests %g s as a reasonable "
              "maximum arc duration (common practice) - the rescaled energy may overstate or "
-             "misstate the hazard", r->new_time_s, TW_RESCALE_MAX_TIME_S, TW_RESCALE_MAX_TIME_S);
+             "misstate the hazard", r->new_time_s, TW_MAX_ARC_DURATION_S, TW_MAX_ARC_DURATION_S);
     if (r->warnings & TW_RESCALE_WARN_OLD_LONG_TIME)
         warn("the study's clearing time %g s is above %g s; its energy may have been capped "
-             "there, so scaling it is unreliable", r->old_time_s, TW_RESCALE_MAX_TIME_S);
+             "there, so scaling it is unreliable", r->old_time_s, TW_MAX_ARC_DURATION_S);
     if (r->warnings & TW_RESCALE_WARN_LARGE_FACTOR)
         warn("the clearing time changes by a factor of %.2f (outside 1/%g to %g); the device "
              "may clear the reduced arcing current in another time", r->new_time_s / r->old_time_s,
@@ -380,9 +388,15 @@ static int make_label(tw_study *st, const reprint_args *a, const tw_bus *b, tw_l
     tw_diags_init(&revised);
     const tw_bus *one = &rb->bus;
     size_t refused = tw_batch_derive(&one, 1, &st->site, a->date, 0, new_l, &revised);
-    for (size_t i = 0; refused && i < revised.count; i++)
-        if (revised.items[i].severity == TW_ERROR)
-            tw_diag_print(&revised.items[i], stderr);
+    /* These values come from the option, not from the row of the results file. */
+    for (size_t i = 0; refused && i < revised.count; i++) {
+        const tw_diag *g = &revised.items[i];
+        if (g->severity == TW_ERROR)
+            fprintf(stderr, "tagwright reprint: %s: error: %s: %s%s%s (the revised label)\n",
+                    a->given ? a->given : "the option", b->equipment_id,
+                    g->field ? g->field : "", g->field ? ": " : "",
+                    g->message ? g->message : "(out of memory)");
+    }
     tw_diags_free(&revised);
     if (refused)
         return TW_EXIT_DATA;
@@ -406,8 +420,11 @@ static int print_label(tw_study *st, const reprint_args *a, const tw_label *l, c
         tw_layout_free(&layout);
         return TW_EXIT_DATA;
     }
-    tw_print_opts po = {a->out, a->manifest, a->date, &layout, &st->site, reason};
+    char *registry = tw_registry_choose("reprint", a->manifest, &st->site, a->out);
+    tw_print_opts po = {a->out, registry, a->date, &layout, &st->site, reason, a->approved_by,
+                        NULL, 0};
     int rc = tw_print_labels(l, 1, &po, err, sizeof err);
+    free(registry);
     if (rc != TW_EXIT_OK)
         fprintf(stderr, "tagwright reprint: %s\n", err);
     tw_layout_free(&layout);
@@ -417,8 +434,8 @@ static int print_label(tw_study *st, const reprint_args *a, const tw_label *l, c
 static int run(tw_study *st, const reprint_args *a)
 {
     char err[1024] = "";
-    const char *inputs[] = {a->results, a->site, a->manifest, a->layout};
-    if (tw_output_path_ok_n(a->out, inputs, 4, err, sizeof err) != 0) {
+    const char *inputs[] = {a->results, a->site, a->manifest, a->layout, st->site.registry};
+    if (tw_output_path_ok_n(a->out, inputs, 5, err, sizeof err) != 0) {
         fprintf(stderr, "tagwright reprint: %s\n", err);
         return TW_EXIT_IO;
     }

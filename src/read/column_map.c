@@ -5,6 +5,7 @@
  * path of the value ("columns.Bus kV.scale"). Everything wrong is an error: a map decides how
  * numbers on a safety label are read, so nothing in it is skipped or guessed. */
 #include "read/tw_column_map.h"
+#include "read/tw_json.h"
 
 #include <cjson/cJSON.h>
 #include <math.h>
@@ -465,21 +466,6 @@ static void apply_map(map_loader *L, const cJSON *root)
     check_constants(L, L->m);
 }
 
-static long line_of(const char *data, size_t len, size_t off)
-{
-    long line = 1;
-    for (size_t i = 0; i < off && i < len; i++)
-        line += data[i] == '\n';
-    return line;
-}
-
-static int text_error(map_loader *L, const char *data, size_t len, size_t at, const char *msg)
-{
-    tw_source src = {L->m->file, line_of(data, len, at), NULL};
-    tw_diag_add(L->d, TW_ERROR, &src, NULL, NULL, "%s", msg);
-    return -1;
-}
-
 int tw_column_map_read_mem(const char *name, const char *data, size_t len, tw_column_map *m,
                            tw_diags *d)
 {
@@ -494,29 +480,11 @@ int tw_column_map_read_mem(const char *name, const char *data, size_t len, tw_co
         tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "out of memory");
         return -1;
     }
-    if (tw_json_value_bound(data, len) > TW_MAX_JSON_VALUES)
-        return text_error(&L, data, len, 0, "more than 5000000 JSON values; expected a column map");
-    size_t nul = tw_json_find_nul(data, len);
-    if (nul < len)
-        return text_error(&L, data, len, nul,
-                          "a NUL character (a NUL byte, or \\u0000); expected text without NUL, "
-                          "which would cut a name short");
-    size_t skip = len >= 3 && memcmp(data, "\xEF\xBB\xBF", 3) == 0 ? 3 : 0;
-    const char *end = NULL;
-    cJSON *root = cJSON_ParseWithLengthOpts(data + skip, len - skip, &end, 0);
-    size_t at = end && end >= data && end <= data + len ? (size_t)(end - data) : 0;
-    while (root && at < len && strchr(" \t\r\n", data[at]))
-        at++;
-    if (!root || at < len) {
-        cJSON_Delete(root);
-        return text_error(&L, data, len, at,
-                          root ? "unexpected text after the column map"
-                               : "not valid JSON here; expected a column map {\"columns\": {...}}");
-    }
-    if (!cJSON_IsObject(root))
-        map_error(&L, NULL, "expected a JSON object (a column map) at the top");
-    else
-        apply_map(&L, root);
+    static const tw_json_spec spec = {"a column map {\"columns\": {...}}", TW_JSON_OBJECT, NULL};
+    cJSON *root = tw_json_parse(m->file, data, len, &spec, d);
+    if (!root)
+        return -1;
+    apply_map(&L, root);
     cJSON_Delete(root);
     return L.errors ? -1 : 0;
 }

@@ -17,6 +17,7 @@
 
 #include "base/tw_date.h"
 #include "base/tw_util.h"
+#include "read/tw_json.h"
 
 #define COUNT(a) (sizeof(a) / sizeof((a)[0]))
 
@@ -240,15 +241,14 @@ static void read_list(loader *L, const cJSON *v, const char *path, const char *f
 /* ---- objects inside a job ----------------------------------------------------------------- */
 
 /* Call read(L, member, member path, ctx) for each member of an object whose key is in keys
- * (a NULL-terminated list); unknown keys are warnings, repeated keys errors. */
+ * (a NULL-terminated list); unknown keys are warnings. */
 typedef void (*member_reader)(loader *L, const char *key, const cJSON *v, const char *path,
                               void *ctx);
 
 static void read_members(loader *L, const cJSON *obj, const char *path, const char *const *keys,
                          member_reader read, void *ctx, const char *doc)
 {
-    unsigned seen = 0;
-    const cJSON *m;
+    const cJSON *m; /* each key once: tw_json_parse() refuses a key given twice */
     cJSON_ArrayForEach(m, obj) {
         const char *key = m->string ? m->string : "";
         char *p = path_key(path, key);
@@ -261,12 +261,8 @@ static void read_members(loader *L, const cJSON *obj, const char *path, const ch
             i++;
         if (!keys[i])
             finding(L, TW_WARNING, p, key, "unknown key, ignored (see %s)", doc);
-        else if (seen & (1u << i))
-            finding(L, TW_ERROR, p, key, "given twice; expected each key once");
-        else {
-            seen |= 1u << i;
+        else
             read(L, key, m, p, ctx);
-        }
         free(p);
     }
 }
@@ -473,58 +469,8 @@ static void read_job(loader *L, const cJSON *obj, const char *path, tw_job *j)
 
 /* ---- files -------------------------------------------------------------------------------- */
 
-/* 1-based line of a byte offset, for parse errors. */
-static long line_of(const char *data, size_t len, size_t offset)
-{
-    long line = 1;
-    for (size_t i = 0; i < offset && i < len; i++)
-        if (data[i] == '\n')
-            line++;
-    return line;
-}
-
-static cJSON *parse(loader *L, const char *data, size_t len)
-{
-    size_t nul = data ? tw_json_find_nul(data, len) : 0;
-    if (data && nul < len) {
-        tw_source src = {L->file, line_of(data, len, nul), NULL};
-        tw_diag_add(L->d, TW_ERROR, &src, NULL, NULL,
-                    "a NUL character (a NUL byte, or \\u0000) near byte %zu; expected text "
-                    "without NUL, which would cut a value short",
-                    nul);
-        L->errors++;
-        return NULL;
-    }
-    if (data && tw_json_value_bound(data, len) > TW_MAX_JSON_VALUES) {
-        tw_source src = {L->file, 0, NULL};
-        tw_diag_add(L->d, TW_ERROR, &src, NULL, NULL,
-                    "more than %d JSON values; expected at most that", TW_MAX_JSON_VALUES);
-        L->errors++;
-        return NULL;
-    }
-    const char *end = NULL;
-    cJSON *root = data ? cJSON_ParseWithLengthOpts(data, len, &end, 0) : NULL;
-    if (!root) {
-        size_t at = end && end >= data && end <= data + len ? (size_t)(end - data) : 0;
-        tw_source src = {L->file, data ? line_of(data, len, at) : 0, NULL};
-        tw_diag_add(L->d, TW_ERROR, &src, NULL, NULL, "not valid JSON near byte %zu; expected "
-                    "a job object or an array of job objects", at);
-        L->errors++;
-        return NULL;
-    }
-    while (end && end < data + len && strchr(" \t\r\n", *end) && *end)
-        end++;
-    if (end && end < data + len) {
-        size_t at = (size_t)(end - data);
-        tw_source src = {L->file, line_of(data, len, at), NULL};
-        tw_diag_add(L->d, TW_ERROR, &src, NULL, NULL,
-                    "unexpected data after the JSON value near byte %zu", at);
-        L->errors++;
-        cJSON_Delete(root);
-        return NULL;
-    }
-    return root;
-}
+static const tw_json_spec job_spec = {"a job object or an array of job objects",
+                                      TW_JSON_OBJECT | TW_JSON_ARRAY, NULL};
 
 static void read_batch(loader *L, const cJSON *root, tw_jobs *out)
 {
@@ -562,24 +508,19 @@ int tw_job_load_mem(const char *name, const char *data, size_t len, tw_jobs *out
         finding(&L, TW_ERROR, NULL, NULL, "out of memory");
         return TW_JOB_BAD;
     }
-    cJSON *root = parse(&L, data, len);
+    cJSON *root = tw_json_parse(L.file, data, len, &job_spec, d);
     if (!root)
         return TW_JOB_BAD;
     if (cJSON_IsArray(root)) {
         out->batch = 1;
         read_batch(&L, root, out);
-    } else if (cJSON_IsObject(root)) {
-        if ((out->jobs = calloc(1, sizeof *out->jobs))) {
-            out->count = 1;
-            read_job(&L, root, "", &out->jobs[0]);
-        } else {
-            finding(&L, TW_ERROR, NULL, NULL, "out of memory");
-        }
+    } else if ((out->jobs = calloc(1, sizeof *out->jobs))) {
+        out->count = 1;
+        read_job(&L, root, "", &out->jobs[0]);
     } else {
-        finding(&L, TW_ERROR, NULL, NULL, "expected a job object or an array of job objects at "
-                "the top");
+        finding(&L, TW_ERROR, NULL, NULL, "out of memory");
     }
-    cJSON_Delete(root);
+    tw_json_free(root, &job_spec);
     return L.errors ? TW_JOB_BAD : TW_JOB_OK;
 }
 

@@ -4,6 +4,7 @@
 
 #include <ctype.h>
 #include <errno.h>
+#include <float.h>
 #include <math.h>
 #include <stdarg.h>
 #include <stdint.h>
@@ -156,12 +157,6 @@ char *tw_excerpt(const char *s, size_t len)
     return out;
 }
 
-/* Text that may run over several lines on a label. */
-static int allows_line_breaks(tw_field f)
-{
-    return f == TW_F_DESCRIPTION || f == TW_F_LOCATION;
-}
-
 /* CR LF and lone CR become LF, in place. */
 static void normalize_line_breaks(char *s)
 {
@@ -178,9 +173,10 @@ static void normalize_line_breaks(char *s)
     *w = '\0';
 }
 
-/* NULL when v is acceptable text for f, else what is wrong with it (static string or printf
- * format taking one code point). */
-static const char *text_problem(tw_field f, const char *v, uint32_t *bad_cp)
+/* NULL when v is acceptable text, else what is wrong with it (static string or printf format
+ * taking one code point). Every value is one line: a label prints each field as one line (it
+ * wraps long ones itself), and the canonical form holds one value per line. */
+static const char *text_problem(const char *v, uint32_t *bad_cp)
 {
     const unsigned char *u = (const unsigned char *)v;
     size_t len = strlen(v);
@@ -190,7 +186,7 @@ static const char *text_problem(tw_field f, const char *v, uint32_t *bad_cp)
         if (n == 0)
             return "expected UTF-8 text, found bytes that are not UTF-8; save the file as UTF-8 "
                    "(or, for CSV, set \"encoding\" in a column map: --columns)";
-        if (is_control(cp) && !(cp == '\n' && allows_line_breaks(f))) {
+        if (is_control(cp)) {
             *bad_cp = cp;
             return cp == '\n' ? "expected a single line, found a line break"
                               : "expected printable text, found control character";
@@ -268,7 +264,7 @@ void tw_row_set_text(tw_row *r, const tw_column *c, const char *s, size_t len, t
     size_t max = f == TW_F_EQUIPMENT_ID ? TW_MAX_ID_BYTES : TW_MAX_TEXT_BYTES;
     size_t n = strlen(v);
     uint32_t cp = 0;
-    const char *problem = text_problem(f, v, &cp);
+    const char *problem = text_problem(v, &cp);
     if (n > max) {
         tw_row_diag(d, r, TW_ERROR, f, c->name, "expected at most %zu bytes, got %zu", max, n);
     } else if (problem && cp) {
@@ -309,6 +305,13 @@ void tw_row_set_number(tw_row *r, const tw_column *c, double v, tw_diags *d)
     }
     if (c->kind == TW_KIND_INTEGER && v != floor(v)) {
         tw_row_diag(d, r, TW_ERROR, f, c->name, "expected a whole number, got %g", v);
+        tw_row_mark_invalid(r, f);
+        return;
+    }
+    if (v != 0 && fabs(v) < DBL_MIN) { /* CSV's strtod refuses these as out of range: so here */
+        tw_row_diag(d, r, TW_ERROR, f, c->name,
+                    "expected a number within the range of a double, got %g (below %g)", v,
+                    DBL_MIN);
         tw_row_mark_invalid(r, f);
         return;
     }

@@ -158,7 +158,13 @@ static void warn_unknown_column(csv_reader *rd, size_t i, const char *name)
 {
     tw_source src = {rd->out->file, rd->row_line, NULL};
     char *ex = tw_excerpt(name, strlen(name));
-    if (*name)
+    const tw_column *like = *name ? tw_column_resembling(name) : NULL;
+    if (like)
+        tw_diag_add(rd->d, TW_ERROR, &src, NULL, ex ? ex : "?",
+                    "unknown column (number %zu) resembles %s (%s); expected the exact name, "
+                    "or another name if it is not that value", i + 1, like->name,
+                    tw_field_display(like->field));
+    else if (*name)
         tw_diag_add(rd->d, TW_WARNING, &src, NULL, ex ? ex : "?",
                     "unknown column (number %zu) is ignored; expected a tagwright column name",
                     i + 1);

@@ -3,6 +3,8 @@
  * voltage V. */
 #include "read/tw_results.h"
 
+#include <ctype.h>
+#include <stdio.h>
 #include <string.h>
 
 /* 1 inch = 25.4 mm and 1 ft = 304.8 mm exactly (international yard and pound, 1959).
@@ -54,6 +56,107 @@ const tw_column *tw_column_find(const char *name)
     for (size_t i = 0; i < tw_column_count; i++)
         if (strcmp(tw_columns[i].name, name) == 0)
             return &tw_columns[i];
+    return NULL;
+}
+
+/* A name in lower case with every run of other characters than letters and digits made one
+ * '_', trimmed of '_' at both ends: "Incident Energy (cal/cm2)" -> "incident_energy_cal_cm2".
+ * Cut at n - 1 bytes. */
+static void normalize_name(const char *s, char *out, size_t n)
+{
+    size_t o = 0;
+    int gap = 0;
+    for (; *s && o + 2 < n; s++) {
+        unsigned char c = (unsigned char)*s;
+        if (isalnum(c)) {
+            if (gap && o > 0)
+                out[o++] = '_';
+            out[o++] = (char)tolower(c);
+            gap = 0;
+        } else {
+            gap = 1;
+        }
+    }
+    out[o] = '\0';
+}
+
+/* Levenshtein distance of a and b, or limit + 1 once it is certain to exceed limit. */
+static size_t edit_distance(const char *a, const char *b, size_t limit)
+{
+    size_t la = strlen(a), lb = strlen(b);
+    if ((la > lb ? la - lb : lb - la) > limit || lb >= 128)
+        return limit + 1;
+    size_t row[128];
+    for (size_t j = 0; j <= lb; j++)
+        row[j] = j;
+    for (size_t i = 1; i <= la; i++) {
+        size_t diag = row[0], best;
+        row[0] = best = i;
+        for (size_t j = 1; j <= lb; j++) {
+            size_t up = row[j];
+            size_t v = diag + (a[i - 1] != b[j - 1]);
+            v = v < up + 1 ? v : up + 1;
+            v = v < row[j - 1] + 1 ? v : row[j - 1] + 1;
+            row[j] = v;
+            diag = up;
+            best = v < best ? v : best;
+        }
+        if (best > limit)
+            return limit + 1;
+    }
+    return row[lb];
+}
+
+/* The words of a field's name without its unit: the part all its columns share when it has
+ * several ("incident_energy_"), else the name without its last word when it has three words
+ * or more ("bolted_fault_ka" -> "bolted_fault_"); "" when neither (a name of two words). */
+static void field_stem(const tw_column *c, char *out, size_t n)
+{
+    snprintf(out, n, "%s", c->name);
+    int several = 0;
+    for (size_t i = 0; i < tw_column_count; i++) {
+        const tw_column *o = &tw_columns[i];
+        if (o == c || o->field != c->field)
+            continue;
+        several = 1;
+        size_t k = 0;
+        while (out[k] && out[k] == o->name[k])
+            k++;
+        out[k] = '\0';
+    }
+    char *last = strrchr(out, '_');
+    if (several) {
+        if (last)
+            last[1] = '\0';
+        else
+            out[0] = '\0';
+        return;
+    }
+    size_t words = 1;
+    for (const char *p = out; *p; p++)
+        words += *p == '_';
+    if (words >= 3 && last)
+        last[1] = '\0';
+    else
+        out[0] = '\0';
+}
+
+const tw_column *tw_column_resembling(const char *name)
+{
+    char n[128], k[128], stem[128];
+    normalize_name(name, n, sizeof n);
+    if (!n[0] || tw_column_find(name))
+        return NULL; /* a known name given twice is reported as such */
+    for (size_t i = 0; i < tw_column_count; i++) {
+        const tw_column *c = &tw_columns[i];
+        normalize_name(c->name, k, sizeof k);
+        size_t limit = strlen(k) >= 8 ? 2 : strlen(k) >= 4 ? 1 : 0;
+        if (strcmp(n, k) == 0 || edit_distance(n, k, limit) <= limit)
+            return c;
+        field_stem(c, stem, sizeof stem);
+        if (stem[0] && strncmp(n, stem, strlen(stem)) == 0)
+            return c; /* the same words with another unit: incident_energy_kj_m2 */
+    }
     return NULL;
 }
 

@@ -14,6 +14,7 @@
 #include "base/tw_map.h"
 #include "base/tw_util.h"
 #include "read/tw_column_map.h"
+#include "read/tw_json.h"
 
 typedef struct {
     tw_results *out;
@@ -111,8 +112,14 @@ static void warn_unknown_key(json_reader *jr, const char *obj_path, const char *
     char *ex = tw_excerpt(key, strlen(key));
     char *path = tw_asprintf("%s.%s", obj_path, ex ? ex : "?");
     tw_source src = {jr->out->file, 0, path ? path : obj_path};
-    tw_diag_add(jr->d, TW_WARNING, &src, NULL, ex ? ex : "?",
-                "unknown key is ignored (reported once); expected a tagwright field name");
+    const tw_column *like = tw_column_resembling(key);
+    if (like)
+        tw_diag_add(jr->d, TW_ERROR, &src, NULL, ex ? ex : "?",
+                    "unknown key resembles %s (%s); expected the exact name, or another name "
+                    "if it is not that value", like->name, tw_field_display(like->field));
+    else
+        tw_diag_add(jr->d, TW_WARNING, &src, NULL, ex ? ex : "?",
+                    "unknown key is ignored (reported once); expected a tagwright field name");
     free(path);
     free(ex);
 }
@@ -187,7 +194,6 @@ static void read_object(json_reader *jr, tw_row *r, const cJSON *obj)
                 read_value(jr, r, c, v);
         }
     }
-    free(seen);
 }
 
 /* Study-level values fill what a bus leaves unset. A default that could not be read was
@@ -253,12 +259,10 @@ static void read_top_level(json_reader *jr, const cJSON *root)
     const cJSON *study = NULL, *buses = NULL;
     for (const cJSON *v = root->child; v; v = v->next) {
         const char *key = v->string ? v->string : "";
-        if (strcmp(key, "study") == 0 && !study)
+        if (strcmp(key, "study") == 0)
             study = v;
-        else if (strcmp(key, "buses") == 0 && !buses)
+        else if (strcmp(key, "buses") == 0)
             buses = v;
-        else if (strcmp(key, "study") == 0 || strcmp(key, "buses") == 0)
-            path_error(jr, key, "key given twice; expected it once");
         else
             warn_unknown_key(jr, "$", key);
     }
@@ -283,32 +287,6 @@ static void read_top_level(json_reader *jr, const cJSON *root)
     else
         read_buses(jr, buses, &def);
     free(def.path);
-}
-
-static long line_at(const char *s, size_t off)
-{
-    long line = 1;
-    for (size_t i = 0; i < off; i++)
-        line += s[i] == '\n';
-    return line;
-}
-
-/* An error at a place in the text (cJSON keeps no positions once parsed). */
-static void text_error(tw_results *out, tw_diags *d, const char *data, size_t off,
-                       const char *msg)
-{
-    tw_source src = {out->file, line_at(data, off), NULL};
-    tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "%s", msg);
-}
-
-/* Everything after the value must be blank. */
-static int only_blanks_after(const char *data, size_t off, size_t len, size_t *where)
-{
-    while (off < len && (data[off] == ' ' || data[off] == '\t' || data[off] == '\r' ||
-                         data[off] == '\n'))
-        off++;
-    *where = off;
-    return off == len;
 }
 
 /* After the whole file: a key the map names that no object had is an error, as a missing
@@ -348,24 +326,11 @@ int tw_results_read_json_map(const char *name, const char *data, size_t len,
         tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "out of memory");
         return -1;
     }
-    if (tw_json_value_bound(data, len) > TW_MAX_JSON_VALUES) {
-        text_error(out, d, data, 0,
-                   "more than 5000000 JSON values; expected at most that in one file (split the "
-                   "study, or use CSV)");
-        return -1;
-    }
-    size_t skip = len >= 3 && memcmp(data, "\xEF\xBB\xBF", 3) == 0 ? 3 : 0;
-    const char *end = NULL;
-    cJSON *root = cJSON_ParseWithLengthOpts(data + skip, len - skip, &end, 0);
-    size_t off = end && end >= data && end <= data + len ? (size_t)(end - data) : 0;
-    if (!root || !only_blanks_after(data, off, len, &off)) {
-        /* not JSON at all: the one case, with I/O and memory, where the read fails */
-        text_error(out, d, data, off,
-                   root ? "unexpected text after the end of the JSON object"
-                        : "not valid JSON here; expected {\"study\": {...}, \"buses\": [...]}");
-        cJSON_Delete(root);
-        return -1;
-    }
+    static const tw_json_spec spec = {"{\"study\": {...}, \"buses\": [...]}", TW_JSON_OBJECT,
+                                      NULL};
+    cJSON *root = tw_json_parse(out->file, data, len, &spec, d);
+    if (!root)
+        return -1; /* refused as a whole: the one case, with I/O and memory, where the read fails */
     json_reader jr = {out, d, {0}, 0, 0, map, NULL};
     tw_map_init(&jr.warned);
     if (map && !(jr.map_seen = calloc(map->column_count + 1, 1))) {
@@ -373,22 +338,8 @@ int tw_results_read_json_map(const char *name, const char *data, size_t len,
         cJSON_Delete(root);
         return -1;
     }
-    /* cJSON would cut a string at a NUL without saying so; a value must never be shortened
-     * silently, so no bus is read from such a file. */
-    size_t nul = tw_json_find_nul(data, len);
-    if (nul < len)
-        text_error(out, d, data, nul,
-                   data[nul] ? "expected text without control characters, found an escaped NUL "
-                               "(\\u0000); no bus is read from this file"
-                             : "expected text without control characters, found a NUL byte; no "
-                               "bus is read from this file");
-    else if (!cJSON_IsObject(root))
-        text_error(out, d, data, skip,
-                   "expected a JSON object {\"study\": {...}, \"buses\": [...]}, got another "
-                   "kind of value; no bus is read from this file");
-    else
-        read_top_level(&jr, root);
-    if (map && !jr.fatal && cJSON_IsObject(root) && nul >= len)
+    read_top_level(&jr, root);
+    if (map && !jr.fatal)
         check_map_use(&jr);
     free(jr.map_seen);
     for (size_t i = 0; i < out->count; i++)

@@ -17,7 +17,9 @@
 
 #include "read/tw_results.h"
 #include "base/tw_fonts.h"
+#include "base/tw_text.h"
 #include "base/tw_util.h"
+#include "read/tw_json.h"
 
 /* Default PPE levels: names of our own; arc ratings at the NFPA 70E Table 130.7(C)(15)(c)
  * category minimums (4, 8, 25, 40 cal/cm2) so that a site without settings still gets a
@@ -32,12 +34,9 @@ static const struct {
     {"AR-40", 40},
 };
 
-/* NEC 110.16(B) (2020 edition): service equipment rated 1200 A or more gets the service
- * label. From memory, verify against the edition in force: the 2023 edition lowered this to
- * 1000 A and extended it to feeder-supplied equipment; a site on that edition sets 1000. */
-#define TW_SERVICE_LABEL_MIN_A 1200.0
-/* Common practice for DANGER (see rules.c). */
-#define TW_DANGER_ABOVE_CAL 40.0
+/* Highest service rating a threshold may name, amperes: a shape check only; the trade rule
+ * (NEC 110.16(B), at most the code's threshold) is tw_site_check_rules() in rules. */
+#define TW_MAX_SERVICE_A 1000000.0
 /* Longest site text accepted (site name, caution line, link, layout), bytes; longer is an
  * error, never truncated. */
 #define TW_MAX_SITE_TEXT TW_MAX_TEXT_BYTES
@@ -71,6 +70,7 @@ void tw_site_free(tw_site *s)
     free(s->language);
     free(s->layout);
     free(s->columns);
+    free(s->registry);
     memset(s, 0, sizeof *s);
 }
 
@@ -78,9 +78,7 @@ int tw_site_defaults(tw_site *s)
 {
     memset(s, 0, sizeof *s);
     s->show = TW_SHOW_INCIDENT_ENERGY;
-    s->danger_above_cal_cm2 = TW_DANGER_ABOVE_CAL;
     s->units = TW_UNITS_IMPERIAL_METRIC;
-    s->service_label_min_a = TW_SERVICE_LABEL_MIN_A;
     s->site_name = tw_strdup("");
     s->record_link = tw_strdup(TW_DEFAULT_RECORD_LINK);
     s->language = tw_strdup("en");
@@ -172,6 +170,16 @@ static void read_text(loader *L, const cJSON *v, const char *path, const char *f
     }
     if (n > TW_MAX_SITE_TEXT) {
         finding(L, TW_ERROR, path, field, "longer than %d bytes", TW_MAX_SITE_TEXT);
+        return;
+    }
+    if (n > 0 && strspn(v->valuestring, " \t\r\n") == n) {
+        finding(L, TW_ERROR, path, field, "expected text, found only blanks");
+        return;
+    }
+    /* Site texts are printed as they are, each on its own line of a label or permit. */
+    if (!tw_text_ok(v->valuestring)) {
+        finding(L, TW_ERROR, path, field, "expected printable UTF-8 text on one line, found a "
+                "line break, a control character or bytes that are not UTF-8");
         return;
     }
     char *copy = tw_strdup(v->valuestring);
@@ -273,17 +281,22 @@ static void key_layout(loader *L, const cJSON *v, tw_site *s)
     read_text(L, v, "layout", "layout", 0, &s->layout);
 }
 
+static void key_registry(loader *L, const cJSON *v, tw_site *s)
+{
+    read_text(L, v, "registry", "registry", 0, &s->registry);
+}
+
 static void key_danger_above(loader *L, const cJSON *v, tw_site *s)
 {
     read_positive(L, v, "danger_above_cal_cm2", "danger_above_cal_cm2", TW_MAX_CAL,
                   &s->danger_above_cal_cm2);
 }
 
-/* A higher threshold than the code's would leave required labels out, so it is refused; a
- * lower one (a stricter site, or the 2023 edition's 1000 A) is accepted. */
+/* A lower threshold than the code's (a stricter site, or the 2023 edition's 1000 A) is
+ * accepted; rules refuses a higher one (tw_site_check_rules). */
 static void key_service_min(loader *L, const cJSON *v, tw_site *s)
 {
-    read_positive(L, v, "service_label_min_a", "service_label_min_a", TW_SERVICE_LABEL_MIN_A,
+    read_positive(L, v, "service_label_min_a", "service_label_min_a", TW_MAX_SERVICE_A,
                   &s->service_label_min_a);
 }
 
@@ -330,33 +343,24 @@ static void read_level(loader *L, const cJSON *v, size_t i, tw_ppe_level *out)
                 "expected an object with \"name\" and \"arc_rating_cal_cm2\"");
         return;
     }
-    int seen_name = 0, seen_rating = 0;
-    const cJSON *k;
+    const cJSON *k; /* each key once: tw_json_parse() refuses a key given twice */
     cJSON_ArrayForEach(k, v) {
         char *path = tw_asprintf("%s.%s", base, k->string ? k->string : "");
         if (!path) {
             oom(L, base, "ppe_levels");
             return;
         }
-        if (k->string && strcmp(k->string, "name") == 0) {
-            if (seen_name++)
-                finding(L, TW_ERROR, path, "name", "key given twice");
-            else
-                read_text(L, k, path, "name", 0, &out->name);
-        } else if (k->string && strcmp(k->string, "arc_rating_cal_cm2") == 0) {
-            if (seen_rating++)
-                finding(L, TW_ERROR, path, "arc_rating_cal_cm2", "key given twice");
-            else
-                read_positive(L, k, path, "arc_rating_cal_cm2", TW_MAX_CAL,
-                              &out->arc_rating_cal_cm2);
-        } else {
+        if (k->string && strcmp(k->string, "name") == 0)
+            read_text(L, k, path, "name", 0, &out->name);
+        else if (k->string && strcmp(k->string, "arc_rating_cal_cm2") == 0)
+            read_positive(L, k, path, "arc_rating_cal_cm2", TW_MAX_CAL, &out->arc_rating_cal_cm2);
+        else
             finding(L, TW_WARNING, path, k->string, "unknown key, ignored");
-        }
         free(path);
     }
-    if (!seen_name)
+    if (!cJSON_GetObjectItemCaseSensitive(v, "name"))
         finding(L, TW_ERROR, base, "name", "missing; expected a non-empty string");
-    if (!seen_rating)
+    if (!cJSON_GetObjectItemCaseSensitive(v, "arc_rating_cal_cm2"))
         finding(L, TW_ERROR, base, "arc_rating_cal_cm2", "missing; expected a number above 0");
 }
 
@@ -449,35 +453,21 @@ static const struct {
     {"language", key_language},
     {"layout", key_layout},
     {"columns", key_columns},
+    {"registry", key_registry},
 };
-
-/* 1-based line of a byte offset, for parse errors. */
-static long line_of(const char *data, size_t len, size_t offset)
-{
-    long line = 1;
-    for (size_t i = 0; i < offset && i < len; i++)
-        if (data[i] == '\n')
-            line++;
-    return line;
-}
 
 static void apply(loader *L, const cJSON *root, tw_site *s)
 {
-    unsigned seen = 0;
-    const cJSON *item;
+    const cJSON *item; /* each key once: tw_json_parse() refuses a key given twice */
     cJSON_ArrayForEach(item, root) {
         const char *key = item->string ? item->string : "";
         size_t i = 0;
         while (i < COUNT(settings_table) && strcmp(settings_table[i].key, key) != 0)
             i++;
-        if (i == COUNT(settings_table)) {
+        if (i == COUNT(settings_table))
             finding(L, TW_WARNING, key, key, "unknown setting, ignored (see docs/site-settings.md)");
-        } else if (seen & (1u << i)) {
-            finding(L, TW_ERROR, key, key, "setting given twice");
-        } else {
-            seen |= 1u << i;
+        else
             settings_table[i].read(L, item, s);
-        }
     }
 }
 
@@ -516,45 +506,13 @@ int tw_site_load_mem(const char *name, const char *data, size_t len, tw_site *s,
         finding(&L, TW_ERROR, NULL, NULL, "out of memory");
         return -1;
     }
-    if (data && tw_json_value_bound(data, len) > TW_MAX_JSON_VALUES) {
-        finding(&L, TW_ERROR, NULL, NULL, "more than %d JSON values; expected at most that",
-                TW_MAX_JSON_VALUES);
+    const tw_json_spec spec = {"an object of site settings", TW_JSON_OBJECT, NULL};
+    cJSON *root = tw_json_parse(L.file, data, len, &spec, d);
+    if (!root)
         return -1;
-    }
-    size_t nul = data ? tw_json_find_nul(data, len) : 0;
-    if (data && nul < len) {
-        tw_source src = {L.file, line_of(data, len, nul), NULL};
-        tw_diag_add(d, TW_ERROR, &src, NULL, NULL,
-                    "a NUL character (a NUL byte, or \\u0000) near byte %zu; expected text "
-                    "without NUL, which would cut a value short",
-                    nul);
-        return -1;
-    }
-    const char *end = NULL;
-    cJSON *root = data ? cJSON_ParseWithLengthOpts(data, len, &end, 0) : NULL;
-    if (!root) {
-        size_t at = end && end >= data && end <= data + len ? (size_t)(end - data) : 0;
-        tw_source src = {L.file, line_of(data, len, at), NULL};
-        tw_diag_add(d, TW_ERROR, &src, NULL, NULL,
-                    "not valid JSON near byte %zu; expected an object of site settings", at);
-        return -1;
-    }
-    while (end && end < data + len && strchr(" \t\r\n", *end) && *end)
-        end++;
-    if (end && end < data + len) {
-        size_t at = (size_t)(end - data);
-        tw_source src = {L.file, line_of(data, len, at), NULL};
-        tw_diag_add(d, TW_ERROR, &src, NULL, NULL,
-                    "unexpected data after the settings object near byte %zu", at);
-        cJSON_Delete(root);
-        return -1;
-    }
-    if (!cJSON_IsObject(root))
-        finding(&L, TW_ERROR, NULL, NULL, "expected a JSON object of site settings at the top");
-    else
-        apply(&L, root, s);
-    cJSON_Delete(root);
+    apply(&L, root, s);
     check_printed_texts(&L, s);
+    tw_json_free(root, &spec);
     return L.errors ? -1 : 0;
 }
 
@@ -572,5 +530,18 @@ int tw_site_load(const char *path, tw_site *s, tw_diags *d)
     }
     int rc = tw_site_load_mem(path, data, len, s, d);
     free(data);
+    /* A relative registry path is relative to the settings file, so that every command finds
+     * the same registry wherever it is run from. */
+    const char *slash = strrchr(path, '/');
+    if (s->registry && s->registry[0] != '/' && slash) {
+        char *full = tw_asprintf("%.*s/%s", (int)(slash - path), path, s->registry);
+        if (!full) {
+            tw_source src = {path, 0, "registry"};
+            tw_diag_add(d, TW_ERROR, &src, NULL, "registry", "out of memory");
+            return -1;
+        }
+        free(s->registry);
+        s->registry = full;
+    }
     return rc;
 }

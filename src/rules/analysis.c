@@ -125,6 +125,25 @@ const tw_ieee1584_range *tw_ieee1584_range_for(double volts)
 
 /* ---- envelope ----------------------------------------------------------------------------- */
 
+double tw_row_distance_exponent(const tw_row *r, const char **source)
+{
+    if (source)
+        *source = NULL;
+    if (tw_row_has(r, TW_F_DISTANCE_EXPONENT) || ((r->invalid >> TW_F_DISTANCE_EXPONENT) & 1u)) {
+        double x = r->num[TW_F_DISTANCE_EXPONENT];
+        return tw_row_has(r, TW_F_DISTANCE_EXPONENT) && positive(x) ? x : NAN;
+    }
+    double volts = r->num[TW_F_NOMINAL_VOLTAGE_V];
+    if (!tw_row_has(r, TW_F_EQUIPMENT_TYPE) || !tw_row_has(r, TW_F_NOMINAL_VOLTAGE_V) ||
+        !positive(volts))
+        return NAN;
+    const char *cited = NULL;
+    double x = tw_distance_exponent_for(r->text[TW_F_EQUIPMENT_TYPE], volts, &cited);
+    if (source && !isnan(x))
+        *source = cited;
+    return x;
+}
+
 static double field_or_nan(const tw_row *r, tw_field f)
 {
     return r && tw_row_has(r, f) && isfinite(r->num[f]) ? r->num[f] : NAN;
@@ -134,13 +153,8 @@ static double field_or_nan(const tw_row *r, tw_field f)
  * 0.1 cal/cm2, or the PPE category's minimum arc rating. NAN when it has neither. */
 static double row_rating(const tw_row *r)
 {
-    double e = field_or_nan(r, TW_F_INCIDENT_ENERGY_CAL);
-    if (positive(e))
-        return tw_round_energy_up(e);
-    double c = field_or_nan(r, TW_F_PPE_CATEGORY);
-    if (c >= 1 && c <= 4 && c == floor(c))
-        return tw_ppe_category_rating((int)c);
-    return NAN;
+    double rating = tw_row_rating(r);
+    return isnan(rating) ? NAN : tw_round_energy_up(rating); /* a category's rating is whole */
 }
 
 static int by_falling_current(const void *a, const void *b)

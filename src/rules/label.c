@@ -49,12 +49,6 @@ static const char *const key_names[TW_L_COUNT] = {
     [TW_L_REVISION_NOTE] = "revision_note",
 };
 
-/* NFPA 70E 130.5(G): the arc-flash risk assessment is reviewed at intervals not exceeding
- * 5 years (from memory, subsection number included: verify against the edition in force). */
-#define TW_REVIEW_YEARS 5
-
-/* NFPA 70E 130.5(H): a PPE category is 1 to 4. */
-#define TW_MAX_PPE_CATEGORY 4
 
 const char *tw_label_key_name(tw_label_key k)
 {
@@ -340,8 +334,10 @@ static void derive_identity(deriver *D)
     copy_text(D, TW_F_SCENARIO, TW_L_SCENARIO, TW_MAX_TEXT_BYTES, 0);
 }
 
-/* Study date as YYYY-MM-DD, and the review due date NFPA 70E 130.5(G) implies. */
-static void derive_dates(deriver *D)
+/* Study date as YYYY-MM-DD, and the review due date NFPA 70E 130.5(G) implies. A study dated
+ * after the label is printed is a slip (9999-12-31 would give a review date that cannot be
+ * written), so it is refused; validation refuses a date after today the same way. */
+static void derive_dates(deriver *D, const char *print_date)
 {
     const char *text = tw_row_has(D->row, TW_F_STUDY_DATE) ? D->row->text[TW_F_STUDY_DATE] : NULL;
     tw_date date;
@@ -353,10 +349,17 @@ static void derive_dates(deriver *D)
         report(D, TW_ERROR, TW_F_STUDY_DATE, "not a calendar date; expected YYYY-MM-DD");
         return;
     }
+    tw_date printed;
+    if (print_date && tw_date_parse(print_date, &printed) == 0 &&
+        tw_date_cmp(date, printed) > 0) {
+        report(D, TW_ERROR, TW_F_STUDY_DATE, "%s is after the print date %s; expected the date "
+               "of a study already made", text, print_date);
+        return;
+    }
     char buf[11];
     tw_date_format(date, buf);
     set(D, TW_L_STUDY_DATE, buf);
-    tw_date_format(tw_date_add_years(date, TW_REVIEW_YEARS), buf);
+    tw_date_format(tw_review_due_date(date), buf);
     set(D, TW_L_REVIEW_DUE, buf);
 }
 
@@ -414,7 +417,7 @@ static void derive_voltage(deriver *D)
 static int category_of(deriver *D)
 {
     double c = D->row->num[TW_F_PPE_CATEGORY];
-    if (!(c >= 1 && c <= TW_MAX_PPE_CATEGORY && c == floor(c))) {
+    if (!tw_ppe_category_valid(c)) {
         report(D, TW_ERROR, TW_F_PPE_CATEGORY, "expected a whole number 1 to 4, got %g", c);
         return 0;
     }
@@ -490,23 +493,6 @@ static int usable(const tw_row *r, tw_field f)
     return number_problem(r, f) == NULL;
 }
 
-/* The distance exponent for computing a missing boundary: the study's own column, else the
- * IEEE 1584-2002 Table 4 value for the equipment type (tw_distance_exponent_for), whose
- * source the boundary note then names. NAN when neither is usable. */
-static double boundary_exponent(const tw_row *r, const char **default_source)
-{
-    *default_source = NULL;
-    if (tw_row_has(r, TW_F_DISTANCE_EXPONENT) || ((r->invalid >> TW_F_DISTANCE_EXPONENT) & 1u))
-        return usable(r, TW_F_DISTANCE_EXPONENT) ? r->num[TW_F_DISTANCE_EXPONENT] : NAN;
-    if (!tw_row_has(r, TW_F_EQUIPMENT_TYPE) || !usable(r, TW_F_NOMINAL_VOLTAGE_V))
-        return NAN;
-    double x = tw_distance_exponent_for(r->text[TW_F_EQUIPMENT_TYPE],
-                                        r->num[TW_F_NOMINAL_VOLTAGE_V], default_source);
-    if (isnan(x))
-        *default_source = NULL;
-    return x;
-}
-
 /*
  * The arc-flash boundary as the study gives it; when the study left it out, computed from the
  * incident energy where it falls to 1.2 cal/cm2 (NFPA 70E definition of the arc-flash
@@ -527,7 +513,7 @@ static void derive_boundary(deriver *D)
         if (need_number(D, TW_F_ARC_FLASH_BOUNDARY_MM, "NFPA 70E 130.5(H)", &mm) != 0)
             return;
     } else if (usable(r, TW_F_INCIDENT_ENERGY_CAL) && usable(r, TW_F_WORKING_DISTANCE_MM) &&
-               !isnan(x = boundary_exponent(r, &default_source))) {
+               !isnan(x = tw_row_distance_exponent(r, &default_source))) {
         double e = tw_round_energy_up(r->num[TW_F_INCIDENT_ENERGY_CAL]);
         mm = tw_afb_mm(e, r->num[TW_F_WORKING_DISTANCE_MM], x);
         if (isnan(mm)) {
@@ -584,7 +570,17 @@ static void derive_ppe_and_signal(deriver *D, double rating)
 static double round_up_to(double v, double per_unit)
 {
     double x = v * per_unit;
-    return ceil(x - 1e-9 * (fabs(x) > 1 ? fabs(x) : 1)) / per_unit;
+    double steps = ceil(x - 1e-9 * (fabs(x) > 1 ? fabs(x) : 1)) + 0.0;
+    return (x > 0 && steps < 1 ? 1 : steps) / per_unit;
+}
+
+/* A rounded value the label can print: finite (a huge value overflows when scaled). */
+static int printable_rounded(deriver *D, tw_field f, double rounded, double given)
+{
+    if (isfinite(rounded) && rounded > 0)
+        return 1;
+    report(D, TW_ERROR, f, "%g is too large to print; expected a finite value", given);
+    return 0;
 }
 
 /*
@@ -622,13 +618,15 @@ static void derive_service(deriver *D, const tw_bus *bus, const char *print_date
     double amps, ka, s;
     if (need_number(D, TW_F_SERVICE_RATING_A, "service equipment, NEC 110.16(B)", &amps) != 0)
         return;
-    if (amps < D->site->service_label_min_a)
+    if (amps < tw_service_label_min_a(D->site))
         return;
     D->row = max_fault_row(bus, governing);
-    if (need_number(D, TW_F_BOLTED_FAULT_KA, "available fault current, NEC 110.16(B)", &ka) == 0)
+    if (need_number(D, TW_F_BOLTED_FAULT_KA, "available fault current, NEC 110.16(B)", &ka) == 0 &&
+        printable_rounded(D, TW_F_BOLTED_FAULT_KA, round_up_to(ka, 10), ka))
         setf(D, TW_L_AVAILABLE_FAULT, "%.1f kA", round_up_to(ka, 10));
     if (need_number(D, TW_F_CLEARING_TIME_S, "clearing time of the service overcurrent device, "
-                    "NEC 110.16(B)", &s) == 0)
+                    "NEC 110.16(B)", &s) == 0 &&
+        printable_rounded(D, TW_F_CLEARING_TIME_S, round_up_to(s, 1000), s))
         setf(D, TW_L_SERVICE_CLEARING_TIME, "%.3f s", round_up_to(s, 1000));
     D->row = governing;
     tw_date date;
@@ -665,7 +663,7 @@ int tw_label_derive(const tw_bus *bus, const tw_site *site, const char *print_da
     derive_boundary(&D);
     derive_ppe_and_signal(&D, rating);
     derive_service(&D, bus, print_date);
-    derive_dates(&D);
+    derive_dates(&D, print_date);
     if (tw_label_rehash(out) != 0)
         report(&D, TW_ERROR, TW_F_COUNT, "could not compute the content hash");
     out->draft = D.errors ? 1 : 0;

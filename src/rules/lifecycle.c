@@ -32,9 +32,9 @@ int tw_rescale_by_time(double old_energy, double old_time, double new_time,
         return -1;
     tw_rescale r = {old_energy, 0, old_time, new_time, working_distance_mm, exponent, 0, 0};
     double ratio = new_time / old_time;
-    if (new_time > TW_RESCALE_MAX_TIME_S)
+    if (new_time > TW_MAX_ARC_DURATION_S)
         r.warnings |= TW_RESCALE_WARN_LONG_TIME;
-    if (old_time > TW_RESCALE_MAX_TIME_S)
+    if (old_time > TW_MAX_ARC_DURATION_S)
         r.warnings |= TW_RESCALE_WARN_OLD_LONG_TIME;
     if (ratio > TW_RESCALE_MAX_FACTOR || ratio < 1.0 / TW_RESCALE_MAX_FACTOR)
         r.warnings |= TW_RESCALE_WARN_LARGE_FACTOR;
@@ -89,7 +89,7 @@ size_t tw_label_compare(const tw_label *old_label, const tw_label *new_label, in
 tw_due_status tw_review_due(tw_date study_date, tw_date on, long within_days, tw_date *due,
                             long *days_left)
 {
-    tw_date d = tw_date_add_years(study_date, TW_REVIEW_INTERVAL_YEARS);
+    tw_date d = tw_review_due_date(study_date);
     long left = tw_date_days(d) - tw_date_days(on);
     if (due)
         *due = d;

@@ -94,11 +94,13 @@ double tw_ppe_category_rating(int category)
  * when scaled, and must not round up to 6.4. 1e-9 is far below any printed digit. */
 #define TW_ROUND_SLACK 1e-9
 
-/* Smallest whole number of steps not below x (x already scaled to steps). */
+/* Smallest whole number of steps not below x (x already scaled to steps). Rounding toward
+ * safety never gives zero for a value above zero (at least one step), nor negative zero. */
 static double ceil_steps(double x)
 {
     double slack = TW_ROUND_SLACK * (fabs(x) > 1 ? fabs(x) : 1);
-    return ceil(x - slack);
+    double steps = ceil(x - slack) + 0.0; /* + 0.0 turns -0 into 0 */
+    return x > 0 && steps < 1 ? 1 : steps;
 }
 
 double tw_round_energy_up(double cal)
@@ -161,19 +163,15 @@ void tw_format_distance(double mm, tw_units units, char *buf, size_t n)
 
 /*
  * Signal words from ANSI Z535.4: DANGER for a hazard that will cause death or serious injury
- * if not avoided, WARNING for one that could. Drawing the line at 40 cal/cm2 is common
- * practice (the NFPA 70E informational notes on very high incident energy speak of greater
- * emphasis above 40 cal/cm2; from memory, verify against the edition in force); the site may
- * set its own threshold. Energy beyond every PPE level the site stocks is always DANGER, and
- * so is a value that is not a number (fail closed).
+ * if not avoided, WARNING for one that could; the line is drawn at tw_danger_above_cal().
+ * Energy beyond every PPE level the site stocks is always DANGER, and so is a value that is
+ * not a number (fail closed).
  */
-#define TW_DEFAULT_DANGER_ABOVE_CAL 40.0
-
 tw_signal tw_signal_word(double cal, const tw_site *site)
 {
     if (isnan(cal))
         return TW_SIGNAL_DANGER;
-    double threshold = site ? site->danger_above_cal_cm2 : TW_DEFAULT_DANGER_ABOVE_CAL;
+    double threshold = tw_danger_above_cal(site);
     if (!(cal <= threshold))   /* a NaN threshold gives DANGER too */
         return TW_SIGNAL_DANGER;
     if (site && cal > tw_site_max_rating(site))
@@ -184,4 +182,51 @@ tw_signal tw_signal_word(double cal, const tw_site *site)
 const char *tw_signal_name(tw_signal s)
 {
     return s == TW_SIGNAL_WARNING ? "WARNING" : "DANGER";
+}
+
+/* ---- trade rules ------------------------------------------------------------------------- */
+
+tw_date tw_review_due_date(tw_date study)
+{
+    return tw_date_add_years(study, TW_REVIEW_YEARS);
+}
+
+double tw_service_label_min_a(const tw_site *site)
+{
+    return site && site->service_label_min_a > 0 ? site->service_label_min_a
+                                                 : TW_NEC_SERVICE_LABEL_MIN_A;
+}
+
+double tw_danger_above_cal(const tw_site *site)
+{
+    return site && site->danger_above_cal_cm2 != 0 ? site->danger_above_cal_cm2
+                                                   : TW_DANGER_ABOVE_CAL_CM2;
+}
+
+int tw_ppe_category_valid(double c)
+{
+    return c >= TW_PPE_CATEGORY_MIN && c <= TW_PPE_CATEGORY_MAX && c == floor(c);
+}
+
+int tw_site_check_rules(const tw_site *site, const char *file, tw_diags *d)
+{
+    double a = site->service_label_min_a;
+    if (a <= TW_NEC_SERVICE_LABEL_MIN_A)
+        return 0;
+    tw_source src = {file, 0, "service_label_min_a"};
+    tw_diag_add(d, TW_ERROR, &src, NULL, "service_label_min_a",
+                "expected a number above 0 and at most %g, got %g", TW_NEC_SERVICE_LABEL_MIN_A, a);
+    return -1;
+}
+
+double tw_row_rating(const tw_row *r)
+{
+    if (tw_row_has(r, TW_F_INCIDENT_ENERGY_CAL)) {
+        double e = r->num[TW_F_INCIDENT_ENERGY_CAL];
+        if (isfinite(e) && e > 0)
+            return e;
+    }
+    if (tw_row_has(r, TW_F_PPE_CATEGORY) && tw_ppe_category_valid(r->num[TW_F_PPE_CATEGORY]))
+        return tw_ppe_category_rating((int)r->num[TW_F_PPE_CATEGORY]);
+    return NAN;
 }

@@ -1,24 +1,17 @@
 /* scenario.c - rows grouped into buses, and the worst case of each (see tw_scenario.h). */
 #include "rules/tw_scenario.h"
 
+#include <math.h>
 #include <stdlib.h>
 #include <string.h>
 
 #include "rules/tw_rules.h"
 
-/* The energy a row stands for: its incident energy, or, for a row from the PPE category
- * method, that category's minimum arc rating (NFPA 70E Table 130.7(C)(15)(c)). -1 when the
- * row has neither. */
+/* The energy a row stands for (tw_row_rating), -1 when it has none. */
 static double row_energy(const tw_row *r)
 {
-    if (tw_row_has(r, TW_F_INCIDENT_ENERGY_CAL))
-        return r->num[TW_F_INCIDENT_ENERGY_CAL];
-    if (tw_row_has(r, TW_F_PPE_CATEGORY)) {
-        double cat = r->num[TW_F_PPE_CATEGORY];
-        double rating = cat >= 1 && cat <= 4 ? tw_ppe_category_rating((int)cat) : 0;
-        return rating > 0 ? rating : -1;
-    }
-    return -1;
+    double rating = tw_row_rating(r);
+    return isnan(rating) ? -1 : rating;
 }
 
 static double row_boundary(const tw_row *r)
@@ -126,10 +119,36 @@ const tw_bus *tw_bus_set_find(const tw_bus_set *s, const char *equipment_id)
 
 unsigned tw_bus_errors(const tw_bus *b)
 {
-    unsigned n = 0;
+    unsigned n = b->other_errors;
     for (size_t i = 0; i < b->count; i++)
         n += b->rows[i]->errors;
     return n;
+}
+
+/* Adds without wrapping round to 0, which would post a bus. */
+static unsigned add_capped(unsigned a, size_t b)
+{
+    return b >= (size_t)(~0u - a) ? ~0u : a + (unsigned)b;
+}
+
+size_t tw_bus_set_attribute(tw_bus_set *s, const tw_diags *d)
+{
+    size_t kept = 0, everywhere = 0;
+    for (size_t i = 0; i < d->count; i++) {
+        const tw_diag *g = &d->items[i];
+        if (g->severity != TW_ERROR)
+            continue;
+        kept++;
+        size_t at;
+        if (g->equipment_id && tw_map_get(&s->index, g->equipment_id, &at))
+            s->buses[at].other_errors = add_capped(s->buses[at].other_errors, 1);
+        else
+            everywhere++;
+    }
+    everywhere += d->errors > kept ? d->errors - kept : 0;
+    for (size_t b = 0; everywhere && b < s->count; b++)
+        s->buses[b].other_errors = add_capped(s->buses[b].other_errors, everywhere);
+    return everywhere;
 }
 
 void tw_bus_set_free(tw_bus_set *s)

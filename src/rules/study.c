@@ -6,6 +6,7 @@
 #include <unistd.h>
 
 #include "read/tw_column_map.h"
+#include "rules/tw_rules.h"
 #include "rules/tw_validate.h"
 
 /* A file that exists, is not a directory and can be opened for reading. */
@@ -45,7 +46,10 @@ int tw_study_load_mapped(tw_study *s, const char *results_path, const char *site
     /* tw_site_load() starts from the defaults itself. */
     if (!site_path && tw_site_defaults(&s->site) != 0)
         return -1;
-    if (site_path && tw_site_load(site_path, &s->site, &s->diags) != 0) {
+    int site_rc = site_path ? tw_site_load(site_path, &s->site, &s->diags) : 0;
+    if (site_path && tw_site_check_rules(&s->site, site_path, &s->diags) != 0)
+        site_rc = -1;
+    if (site_rc != 0) {
         s->site_bad = 1;
         s->unreadable = !readable_file(site_path); /* I/O (exit 3), not bad data */
         return -1;
@@ -62,6 +66,7 @@ int tw_study_load_mapped(tw_study *s, const char *results_path, const char *site
     if (tw_bus_set_build(&s->results, &s->buses) != 0)
         return -1;
     tw_validate(&s->results, &s->buses, &s->site, &s->diags);
+    s->study_errors = tw_bus_set_attribute(&s->buses, &s->diags);
     return 0;
 }
 

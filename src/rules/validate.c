@@ -21,16 +21,13 @@
 #include "rules/tw_rules.h"
 #include "base/tw_util.h"
 
-/* NEC 110.16(B) (2020 and later): service equipment rated 1200 A or more carries a label with
- * the available fault current and the clearing time of the service overcurrent device. Used
- * when no site settings are given; a site may set its own threshold. */
-#define NEC_110_16B_MIN_A 1200.0
 
 typedef struct {
     tw_results *results;
     const tw_bus_set *buses;
     const tw_site *site;
     tw_diags *d;
+    tw_date today;
 } check_ctx;
 
 typedef struct {
@@ -95,27 +92,31 @@ static void check_required(const check_ctx *ctx, tw_row *r)
                 "the working distance at which the incident energy was calculated");
 }
 
-/* Values that cannot be zero or negative (and, for motor contribution, negative). */
+/* Values that cannot be zero or negative (and, for motor contribution, negative). A value
+ * printed on a label must also not print as zero: `prints_as_zero` is half the step the label
+ * prints it in (0.1 cal/cm2, whole mm, 0.1 kA, 0.001 s), below which ordinary rounding would
+ * show 0 - such a value is a slip in the data (1e-12 cal/cm2), not a hazard level. */
 static const struct {
     tw_field field;
     const char *unit;
     int zero_ok;
+    double prints_as_zero;
 } positive_fields[] = {
-    {TW_F_NOMINAL_VOLTAGE_V, "V", 0},
-    {TW_F_INCIDENT_ENERGY_CAL, "cal/cm2", 0}, /* a label must never say 0 cal/cm2 */
-    {TW_F_WORKING_DISTANCE_MM, "mm", 0},
-    {TW_F_ARC_FLASH_BOUNDARY_MM, "mm", 0},
-    {TW_F_SOURCE_FAULT_KA, "kA", 0},
-    {TW_F_BOLTED_FAULT_KA, "kA", 0},
-    {TW_F_ARCING_CURRENT_KA, "kA", 0},
-    {TW_F_CLEARING_TIME_S, "s", 0},
-    {TW_F_GAP_MM, "mm", 0},
-    {TW_F_DISTANCE_EXPONENT, "", 0},
-    {TW_F_SERVICE_RATING_A, "A", 0},
-    {TW_F_XFMR_KVA, "kVA", 0},
-    {TW_F_XFMR_Z_PERCENT, "%", 0},
-    {TW_F_XFMR_SECONDARY_V, "V", 0},
-    {TW_F_MOTOR_CONTRIBUTION_KA, "kA", 1}, /* 0: no motors */
+    {TW_F_NOMINAL_VOLTAGE_V, "V", 0, 0.5},
+    {TW_F_INCIDENT_ENERGY_CAL, "cal/cm2", 0, 0.05}, /* a label must never say 0 cal/cm2 */
+    {TW_F_WORKING_DISTANCE_MM, "mm", 0, 0.5},
+    {TW_F_ARC_FLASH_BOUNDARY_MM, "mm", 0, 0.5},
+    {TW_F_SOURCE_FAULT_KA, "kA", 0, 0},
+    {TW_F_BOLTED_FAULT_KA, "kA", 0, 0.05},
+    {TW_F_ARCING_CURRENT_KA, "kA", 0, 0},
+    {TW_F_CLEARING_TIME_S, "s", 0, 0.0005},
+    {TW_F_GAP_MM, "mm", 0, 0},
+    {TW_F_DISTANCE_EXPONENT, "", 0, 0},
+    {TW_F_SERVICE_RATING_A, "A", 0, 0},
+    {TW_F_XFMR_KVA, "kVA", 0, 0},
+    {TW_F_XFMR_Z_PERCENT, "%", 0, 0},
+    {TW_F_XFMR_SECONDARY_V, "V", 0, 0},
+    {TW_F_MOTOR_CONTRIBUTION_KA, "kA", 1, 0}, /* 0: no motors */
 };
 
 static void check_positive(const check_ctx *ctx, tw_row *r)
@@ -124,12 +125,15 @@ static void check_positive(const check_ctx *ctx, tw_row *r)
         tw_field f = positive_fields[i].field;
         if (!tw_row_has(r, f))
             continue;
-        double v = r->num[f];
+        double v = r->num[f], tiny = positive_fields[i].prints_as_zero;
+        const char *sp = *positive_fields[i].unit ? " " : "", *unit = positive_fields[i].unit;
         int ok = positive_fields[i].zero_ok ? v >= 0 : v > 0; /* false for NaN */
         if (!ok)
             tw_row_diag(ctx->d, r, TW_ERROR, f, NULL, "expected a value %s 0, got %g%s%s",
-                        positive_fields[i].zero_ok ? "of at least" : "greater than", v,
-                        *positive_fields[i].unit ? " " : "", positive_fields[i].unit);
+                        positive_fields[i].zero_ok ? "of at least" : "greater than", v, sp, unit);
+        else if (v < tiny)
+            tw_row_diag(ctx->d, r, TW_ERROR, f, NULL, "%g%s%s would print as 0 on the label; "
+                        "expected at least %g%s%s", v, sp, unit, tiny, sp, unit);
     }
 }
 
@@ -139,7 +143,7 @@ static void check_ppe_category(const check_ctx *ctx, tw_row *r)
     if (!tw_row_has(r, TW_F_PPE_CATEGORY))
         return;
     double c = r->num[TW_F_PPE_CATEGORY];
-    if (!(c >= 1 && c <= 4))
+    if (!tw_ppe_category_valid(c))
         tw_row_diag(ctx->d, r, TW_ERROR, TW_F_PPE_CATEGORY, NULL,
                     "expected a PPE category from 1 to 4 (NFPA 70E Table 130.7(C)(15)(c)), got %g",
                     c);
@@ -160,6 +164,13 @@ static void check_study_date(const check_ctx *ctx, tw_row *r)
     if (s && tw_date_parse(s, &date) != 0)
         tw_row_diag(ctx->d, r, TW_ERROR, TW_F_STUDY_DATE, NULL,
                     "expected an ISO 8601 date YYYY-MM-DD, got '%s'", s);
+    else if (s && tw_date_cmp(date, ctx->today) > 0) {
+        char today[11];
+        tw_date_format(ctx->today, today);
+        tw_row_diag(ctx->d, r, TW_ERROR, TW_F_STUDY_DATE, NULL,
+                    "%s is after today (%s); expected the date of a study already made", s,
+                    today);
+    }
 }
 
 /* The label prints the shock approach boundaries (NFPA 70E Table 130.4(E)(a)) and the glove
@@ -188,8 +199,7 @@ static void check_service_equipment(const check_ctx *ctx, tw_row *r)
 {
     if (!tw_row_has(r, TW_F_SERVICE_EQUIPMENT) || r->num[TW_F_SERVICE_EQUIPMENT] == 0)
         return;
-    double min_a = ctx->site && ctx->site->service_label_min_a > 0 ? ctx->site->service_label_min_a
-                                                                   : NEC_110_16B_MIN_A;
+    double min_a = tw_service_label_min_a(ctx->site);
     if (!given(r, TW_F_SERVICE_RATING_A)) {
         tw_row_diag(ctx->d, r, TW_ERROR, TW_F_COUNT, tw_field_name(TW_F_SERVICE_RATING_A),
                     "missing; expected the rating of service equipment, to tell whether NEC "
@@ -280,21 +290,16 @@ static void check_infinite_bus(const check_ctx *ctx, tw_row *r)
                     (bolted / bound - 1) * 100, TW_INFINITE_BUS_TOLERANCE * 100);
 }
 
-/* The distance exponent for a row: its own column, else the IEEE 1584-2002 default for its
- * equipment type. NAN when neither is known. */
+/* The distance exponent for a row (tw_row_distance_exponent), and where it came from. */
 static double exponent_of(const tw_row *r, char *why, size_t n)
 {
-    if (tw_row_has(r, TW_F_DISTANCE_EXPONENT)) {
+    const char *source = NULL;
+    double x = tw_row_distance_exponent(r, &source);
+    if (!source)
         snprintf(why, n, "distance_exponent column");
-        return usable(r, TW_F_DISTANCE_EXPONENT) ? r->num[TW_F_DISTANCE_EXPONENT] : NAN;
-    }
-    if (!tw_row_has(r, TW_F_EQUIPMENT_TYPE) || !usable(r, TW_F_NOMINAL_VOLTAGE_V))
-        return NAN;
-    const char *source = "";
-    double x = tw_distance_exponent_for(r->text[TW_F_EQUIPMENT_TYPE],
-                                        r->num[TW_F_NOMINAL_VOLTAGE_V], &source);
-    snprintf(why, n, "%s default for %s; give the study's own distance_exponent if it used "
-             "IEEE 1584-2018", source, r->text[TW_F_EQUIPMENT_TYPE]);
+    else
+        snprintf(why, n, "%s default for %s; give the study's own distance_exponent if it used "
+                 "IEEE 1584-2018", source, r->text[TW_F_EQUIPMENT_TYPE]);
     return x;
 }
 
@@ -376,12 +381,12 @@ static void check_arcing_below_bolted(const check_ctx *ctx, tw_row *r)
 /* Common practice caps the arc duration at 2 s (an IEEE 1584 note). */
 static void check_clearing_time(const check_ctx *ctx, tw_row *r)
 {
-    if (usable(r, TW_F_CLEARING_TIME_S) && r->num[TW_F_CLEARING_TIME_S] > TW_MAX_CLEARING_S)
+    if (usable(r, TW_F_CLEARING_TIME_S) && r->num[TW_F_CLEARING_TIME_S] > TW_MAX_ARC_DURATION_S)
         tw_row_diag(ctx->d, r, TW_WARNING, TW_F_CLEARING_TIME_S, NULL,
                     "%g s is above %g s; common practice (an IEEE 1584 note) caps the arc "
                     "duration at %g s, since a person would most likely move away from the "
                     "arc: confirm the study's assumption", r->num[TW_F_CLEARING_TIME_S],
-                    TW_MAX_CLEARING_S, TW_MAX_CLEARING_S);
+                    TW_MAX_ARC_DURATION_S, TW_MAX_ARC_DURATION_S);
 }
 
 /* ---- buses ----------------------------------------------------------------------------- */
@@ -448,6 +453,34 @@ static void check_voltage_agreement(const check_ctx *ctx, const tw_bus *b)
                         "expected the same nominal voltage in every scenario of a bus; %g V "
                         "here, %g V at %s",
                         v, v0, at);
+        }
+    }
+}
+
+/* A bus's rows come from one study revision: a label shows one study ID and date, and its review
+ * date (NFPA 70E 130.5(G), five years) follows from that date, so rows of different studies
+ * would give a label and a `due` listing that disagree about which study governs. */
+static void check_one_study(const check_ctx *ctx, const tw_bus *b)
+{
+    const tw_row *ref = NULL;
+    for (size_t i = 0; i < b->count; i++) {
+        tw_row *r = b->rows[i];
+        if (!ref) {
+            ref = r;
+            continue;
+        }
+        static const tw_field fields[] = {TW_F_STUDY_ID, TW_F_STUDY_DATE};
+        for (size_t k = 0; k < 2; k++) {
+            tw_field f = fields[k];
+            const char *a = tw_row_has(r, f) ? r->text[f] : "", *o = tw_row_has(ref, f) ? ref->text[f] : "";
+            if (strcmp(a ? a : "", o ? o : "") == 0)
+                continue;
+            char at[64];
+            where(ref, at, sizeof at);
+            tw_row_diag(ctx->d, r, TW_ERROR, f, NULL,
+                        "'%s' here, '%s' at %s; expected every scenario of a bus from one study "
+                        "revision (its label and its review date name one study)",
+                        a ? a : "", o ? o : "", at);
         }
     }
 }
@@ -587,11 +620,12 @@ static const tw_check checks[] = {
     {"drawable-text", check_drawable, NULL},
     {"one-row-per-scenario", NULL, check_duplicate_ids},
     {"voltage-across-scenarios", NULL, check_voltage_agreement},
+    {"one-study-per-bus", NULL, check_one_study},
 };
 
 size_t tw_validate(tw_results *r, const tw_bus_set *buses, const tw_site *site, tw_diags *d)
 {
-    check_ctx ctx = {r, buses, site, d};
+    check_ctx ctx = {r, buses, site, d, tw_date_today()};
     size_t before = d->errors, n = sizeof checks / sizeof checks[0];
     /* Row by row, so the findings about one row come out together and in input order. */
     for (size_t i = 0; i < r->count; i++)
@@ -603,5 +637,10 @@ size_t tw_validate(tw_results *r, const tw_bus_set *buses, const tw_site *site, 
             if (checks[c].bus)
                 checks[c].bus(&ctx, &buses->buses[i]);
     check_lookalike_ids(&ctx); /* "one-spelling-per-id": across all buses at once */
+    if (buses && buses->count == 0) { /* a header alone, {"buses": []}, CR-only line ends */
+        tw_source src = {r->file, 0, NULL};
+        tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "no buses; expected at least one row with an "
+                    "equipment ID (a file whose lines end in CR alone reads as a header only)");
+    }
     return d->errors - before;
 }

@@ -1066,6 +1066,15 @@ static int plan_texts(tw_label_doc *doc, const tw_site *site, char *err, size_t 
 tw_label_doc *tw_label_doc_new(const tw_layout *layout, const tw_site *site,
                                const char *creation_date, char *err, size_t errlen)
 {
+    int status;
+    return tw_label_doc_new_status(layout, site, creation_date, &status, err, errlen);
+}
+
+tw_label_doc *tw_label_doc_new_status(const tw_layout *layout, const tw_site *site,
+                                      const char *creation_date, int *status, char *err,
+                                      size_t errlen)
+{
+    *status = TW_EXIT_IO;
     tw_label_doc *doc = calloc(1, sizeof *doc);
     if (!doc) {
         snprintf(err, errlen, "out of memory");
@@ -1083,8 +1092,12 @@ tw_label_doc *tw_label_doc_new(const tw_layout *layout, const tw_site *site,
     }
     doc->layout.name = NULL; /* not needed; the caller owns its layout */
     doc->layout.description = NULL;
-    if (tw_pdf_doc_open(&doc->pdf, creation_date, err, errlen) != 0 ||
-        plan_texts(doc, site, err, errlen) != 0 || plan_footer(doc, site, err, errlen) != 0) {
+    if (tw_pdf_doc_open(&doc->pdf, creation_date, err, errlen) != 0) {
+        tw_label_doc_free(doc);
+        return NULL;
+    }
+    if (plan_texts(doc, site, err, errlen) != 0 || plan_footer(doc, site, err, errlen) != 0) {
+        *status = strstr(err, "out of memory") ? TW_EXIT_IO : TW_EXIT_DATA;
         tw_label_doc_free(doc);
         return NULL;
     }

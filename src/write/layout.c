@@ -14,6 +14,7 @@
 
 #include "rules/tw_label.h"
 #include "base/tw_util.h"
+#include "read/tw_json.h"
 
 #ifndef TW_DATADIR
 #define TW_DATADIR "/usr/local/share/tagwright"
@@ -512,22 +513,10 @@ int tw_layout_load_mem(const char *name, const char *data, size_t len, tw_layout
     const char *src_name = name ? name : "layout";
     reader r = {src_name, d, 0, NULL};
     size_t errors_before = d->errors;
-    if (tw_json_value_bound(data, len) > TW_MAX_JSON_VALUES) {
-        fail(&r, "$", "more than %d JSON values; expected at most that", TW_MAX_JSON_VALUES);
+    static const tw_json_spec spec = {"a layout object", TW_JSON_OBJECT, NULL};
+    cJSON *root = tw_json_parse(src_name, data, len, &spec, d);
+    if (!root)
         return -1;
-    }
-    size_t nul = tw_json_find_nul(data, len);
-    if (nul < len) {
-        fail(&r, "$", "a NUL character (a NUL byte, or \\u0000) near byte %zu; expected text "
-             "without NUL, which would cut a value short", nul);
-        return -1;
-    }
-    cJSON *root = cJSON_ParseWithLength(data, len);
-    if (!root || !cJSON_IsObject(root)) {
-        fail(&r, "$", "not a JSON object (check brackets, commas and quotes)");
-        cJSON_Delete(root);
-        return -1;
-    }
     warn_unknown(&r, root, "$", top_keys);
     const cJSON *desc = cJSON_GetObjectItemCaseSensitive(root, "description");
     if (desc && !cJSON_IsString(desc))

@@ -1,19 +1,19 @@
-/* manifest.c - the record of printed labels (see tw_manifest.h, schema in docs/manifest.md). */
+/* manifest.c - the JSON manifest reader, for `registry import` (see tw_manifest.h,
+ * docs/registry.md). */
 #include "write/tw_manifest.h"
 
 #include <cjson/cJSON.h>
-#include <errno.h>
-#include <fcntl.h>
 #include <stdlib.h>
 #include <string.h>
-#include <sys/file.h>
-#include <unistd.h>
 
 #include "base/tw_atomic.h"
 #include "base/tw_util.h"
+#include "read/tw_json.h"
 
 #define MANIFEST_FORMAT TW_LABEL_RECORD_FORMAT
-#define MANIFEST_VERSION 1
+/* Version 1: the manifest earlier builds wrote beside each PDF; version 2: `registry export`
+ * (adds removed revisions, approvals and study dates). */
+#define MANIFEST_VERSION_MAX 2
 
 /* A copy of s (NULL gives NULL) among the manifest's strings. An entry's strings are never
  * freed one by one: a replaced one stays until the manifest is closed (a few per label printed
@@ -48,47 +48,13 @@ static int reindex(tw_manifest *m)
     return 0;
 }
 
-/* ---- cJSON in an arena ---------------------------------------------------------------------
- *
- * A manifest of 10,000 labels is 10 MB of JSON: cJSON's tree of it is some 450,000 small
- * blocks, which took 200 ms to allocate and 100 ms to free one by one. While a manifest is
- * parsed or printed, cJSON allocates from an arena instead, freed at once; its free does
- * nothing (no tree made in an arena is ever given to cJSON_Delete). cJSON's hooks are
- * process-wide, so they are set only around those calls, which run on the one thread that
- * uses cJSON (worker threads and processes never do).
- */
-
-static tw_arena *json_arena;
-
-static void *arena_malloc(size_t n)
-{
-    return tw_arena_alloc(json_arena, n);
-}
-
-static void arena_free(void *p)
-{
-    (void)p; /* freed with the arena */
-}
-
-static void json_in_arena(tw_arena *a)
-{
-    json_arena = a;
-    cJSON_Hooks hooks = {arena_malloc, arena_free};
-    cJSON_InitHooks(&hooks);
-}
-
-static void json_in_heap(void)
-{
-    cJSON_InitHooks(NULL);
-    json_arena = NULL;
-}
-
 /* ---- loading ---------------------------------------------------------------------------- */
 
 typedef struct {
     const char *name;
     tw_diags *d;
     int bad;
+    int version;
 } load_ctx;
 
 static void load_error(load_ctx *c, const char *path, const char *field, const char *msg)
@@ -162,13 +128,21 @@ static void load_entry(load_ctx *c, tw_manifest *m, const cJSON *o, size_t i)
     e->changes = get_string(c, m, o, "changes", path, 0);
     e->payload = get_string(c, m, o, "payload", path, 0);
     e->content = get_string(c, m, o, "content", path, 0);
+    e->study_date = get_string(c, m, o, "study_date", path, 0);
+    e->approved_by = get_string(c, m, o, "approved_by", path, 0);
+    e->lowered = get_string(c, m, o, "lowered", path, 0);
+    e->removed_on = get_string(c, m, o, "removed_on", path, 0);
+    e->removed_reason = get_string(c, m, o, "removed_reason", path, 0);
     e->revision = get_int(c, o, "revision", path, 1);
     e->volume = get_int(c, o, "volume", path, 1);
     e->page = get_int(c, o, "page", path, 1);
     const char *status = peek_string(c, o, "status", path, 1);
-    if (status && strcmp(status, "current") && strcmp(status, "superseded"))
-        load_error(c, path, "status", "expected \"current\" or \"superseded\"");
+    if (status && strcmp(status, "current") && strcmp(status, "superseded") &&
+        (c->version < 2 || strcmp(status, "removed")))
+        load_error(c, path, "status", c->version < 2 ? "expected \"current\" or \"superseded\""
+                   : "expected \"current\", \"superseded\" or \"removed\"");
     e->current = status && !strcmp(status, "current");
+    e->removed = status && !strcmp(status, "removed");
     m->count++;
     if (!e->equipment_id || !e->content_hash)
         return;
@@ -177,6 +151,8 @@ static void load_entry(load_ctx *c, tw_manifest *m, const cJSON *o, size_t i)
         load_error(c, path, "status", "a second current revision for the same equipment");
         return;
     }
+    if (!e->current && !e->removed && !e->superseded_on && c->version >= 2)
+        load_error(c, path, "superseded_on", "expected the date it was superseded");
     if (e->current && tw_map_put(&m->current, e->equipment_id, m->count - 1))
         load_error(c, path, NULL, "out of memory");
 }
@@ -184,31 +160,27 @@ static void load_entry(load_ctx *c, tw_manifest *m, const cJSON *o, size_t i)
 int tw_manifest_load_mem(const char *name, const char *data, size_t len, tw_manifest *m,
                          tw_diags *d)
 {
-    load_ctx c = {name, d, 0};
+    load_ctx c = {name, d, 0, 1};
     memset(m, 0, sizeof *m);
-    m->lock_fd = -1;
-    if (tw_json_value_bound(data, len) > TW_MAX_JSON_VALUES) {
-        load_error(&c, "$", NULL, "more than 5000000 JSON values; expected at most that");
-        return -1;
-    }
-    if (tw_json_find_nul(data, len) < len) {
-        load_error(&c, "$", NULL, "a NUL character (a NUL byte, or \\u0000); expected text "
-                   "without NUL, which would cut a value short");
-        return -1;
-    }
     tw_arena tree = {0};
-    json_in_arena(&tree);
-    cJSON *root = cJSON_ParseWithLength(data, len);
-    json_in_heap();
+    const tw_json_spec spec = {"a labels manifest object", TW_JSON_OBJECT, &tree};
+    cJSON *root = tw_json_parse(name, data, len, &spec, d);
     if (!root) {
         tw_arena_free(&tree);
-        load_error(&c, "$", NULL, "not valid JSON");
         return -1;
     }
     const cJSON *fmt = cJSON_GetObjectItemCaseSensitive(root, "format");
     const cJSON *labels = cJSON_GetObjectItemCaseSensitive(root, "labels");
-    if (!cJSON_IsObject(root) || !cJSON_IsString(fmt) || strcmp(fmt->valuestring, MANIFEST_FORMAT))
+    const cJSON *version = cJSON_GetObjectItemCaseSensitive(root, "version");
+    if (cJSON_IsNumber(version))
+        c.version = (int)version->valuedouble;
+    if (!cJSON_IsString(fmt) || strcmp(fmt->valuestring, MANIFEST_FORMAT))
         load_error(&c, "format", "format", "expected \"" MANIFEST_FORMAT "\"");
+    else if (!cJSON_IsNumber(version) || version->valuedouble < 1 ||
+             version->valuedouble > MANIFEST_VERSION_MAX ||
+             version->valuedouble != (double)c.version)
+        load_error(&c, "version", "version", "expected 1 (a manifest) or 2 (a registry export); "
+                   "a file of another version is not read, so that nothing in it is lost");
     else if (!cJSON_IsArray(labels))
         load_error(&c, "labels", "labels", "expected an array");
     else {
@@ -222,64 +194,12 @@ int tw_manifest_load_mem(const char *name, const char *data, size_t len, tw_mani
     return c.bad ? -1 : 0;
 }
 
-int tw_manifest_open(const char *path, tw_manifest *m, tw_diags *d)
-{
-    memset(m, 0, sizeof *m);
-    m->lock_fd = -1;
-    tw_source src = {path, 0, NULL};
-    char *lock_path = tw_asprintf("%s.lock", path);
-    int fd = lock_path ? open(lock_path, O_RDWR | O_CREAT | O_CLOEXEC, 0644) : -1;
-    if (fd < 0 || flock(fd, LOCK_EX) != 0) {
-        tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "cannot lock %s: %s",
-                    lock_path ? lock_path : path, strerror(errno));
-        if (fd >= 0)
-            close(fd);
-        free(lock_path);
-        return -1;
-    }
-    free(lock_path);
-    char err[512] = "";
-    if (tw_output_replaceable(path, err, sizeof err) != 0) { /* reading a FIFO would block */
-        tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "%s", err);
-        close(fd);
-        return -1;
-    }
-    size_t len = 0;
-    char *data = NULL;
-    if (access(path, F_OK) == 0 && !(data = tw_read_file(path, &len, err, sizeof err))) {
-        tw_diag_add(d, TW_ERROR, &src, NULL, NULL, "%s", err);
-        close(fd);
-        return -1;
-    }
-    int rc = 0;
-    if (data)
-        rc = tw_manifest_load_mem(path, data, len, m, d);
-    free(data);
-    m->lock_fd = fd;
-    m->path = tw_strdup(path);
-    if (rc != 0 || !m->path) {
-        if (!m->path)
-            close(fd);
-        tw_manifest_close(m);
-        return -1;
-    }
-    return 0;
-}
-
 /* ---- queries and updates ----------------------------------------------------------------- */
 
 const tw_manifest_entry *tw_manifest_current(const tw_manifest *m, const char *equipment_id)
 {
     size_t i;
     return tw_map_get(&m->current, equipment_id, &i) ? &m->entries[i] : NULL;
-}
-
-int tw_manifest_next_revision(const tw_manifest *m, const char *equipment_id, const char *hash)
-{
-    const tw_manifest_entry *cur = tw_manifest_current(m, equipment_id);
-    if (!cur)
-        return 1;
-    return strcmp(cur->content_hash, hash) == 0 ? cur->revision : cur->revision + 1;
 }
 
 /* Value of "key=" in a canonical form, as a fresh string, or NULL. */
@@ -336,163 +256,94 @@ static int diff_keys(char **out, const char *walk, const char *oldc, const char 
     return 0;
 }
 
+/* The lines of a canonical form as key/value spans; 0, or -1 when it has more than max. */
+typedef struct {
+    const char *key, *value;
+    size_t keylen, valuelen;
+} line_span;
+
+static int split_lines(const char *c, line_span *out, size_t max, size_t *n)
+{
+    *n = 0;
+    for (const char *p = c; p && *p;) {
+        const char *eol = strchr(p, '\n'), *end = eol ? eol : p + strlen(p);
+        const char *eq = memchr(p, '=', (size_t)(end - p));
+        if (!eq)
+            break; /* as the key-by-key walk does: the rest is not key=value */
+        if (*n == max)
+            return -1;
+        out[(*n)++] = (line_span){p, eq + 1, (size_t)(eq - p), (size_t)(end - eq - 1)};
+        p = eol ? eol + 1 : NULL;
+    }
+    return 0;
+}
+
+static const line_span *find_key(const line_span *l, size_t n, const line_span *k)
+{
+    for (size_t i = 0; i < n; i++)
+        if (l[i].keylen == k->keylen && !memcmp(l[i].key, k->key, k->keylen))
+            return &l[i];
+    return NULL;
+}
+
+/* "key: old -> new" appended to a growing buffer. */
+static int add_change(char **buf, size_t *len, size_t *cap, const line_span *k,
+                      const line_span *o, const line_span *nw)
+{
+    size_t need = *len + 2 + k->keylen + 2 + (o ? o->valuelen : 6) + 4 + (nw ? nw->valuelen : 6) + 1;
+    if (need > *cap) {
+        size_t c = need * 2;
+        char *g = realloc(*buf, c);
+        if (!g)
+            return -1;
+        *buf = g;
+        *cap = c;
+    }
+    int n = snprintf(*buf + *len, *cap - *len, "%s%.*s: %.*s -> %.*s", *len ? "; " : "",
+                     (int)k->keylen, k->key, o ? (int)o->valuelen : 6, o ? o->value : "(none)",
+                     nw ? (int)nw->valuelen : 6, nw ? nw->value : "(none)");
+    *len += (size_t)n;
+    return 0;
+}
+
+/* Linear in the two forms (a label has some 25 fields): every key of the new form that is
+ * added or changed, in its order, then every key the new form lost. The first value of a key
+ * counts, as in a lookup. Forms of more than 64 lines take the key-by-key walk. */
 char *tw_manifest_changes(const char *old_content, const char *new_content)
 {
-    char *out = tw_strdup("");
     const char *o = old_content ? old_content : "", *n = new_content ? new_content : "";
-    if (!out || diff_keys(&out, n, o, n, NULL) || diff_keys(&out, o, o, n, n)) {
-        free(out);
+    line_span ol[64], nl[64];
+    size_t on, nn;
+    if (split_lines(o, ol, 64, &on) || split_lines(n, nl, 64, &nn)) {
+        char *out = tw_strdup("");
+        if (!out || diff_keys(&out, n, o, n, NULL) || diff_keys(&out, o, o, n, n)) {
+            free(out);
+            return NULL;
+        }
+        return out;
+    }
+    char *buf = malloc(256);
+    size_t len = 0, cap = 256;
+    if (!buf)
         return NULL;
+    buf[0] = '\0';
+    int bad = 0;
+    for (size_t i = 0; !bad && i < nn; i++) {
+        const line_span *first = find_key(nl, nn, &nl[i]);
+        if (first != &nl[i])
+            continue; /* a key given twice: its first value was compared */
+        const line_span *ov = find_key(ol, on, &nl[i]);
+        if (!ov || ov->valuelen != first->valuelen || memcmp(ov->value, first->value, ov->valuelen))
+            bad = add_change(&buf, &len, &cap, &nl[i], ov, first);
     }
-    return out;
-}
-
-static int fill_entry(tw_manifest *m, tw_manifest_entry *e, const tw_manifest_print *p,
-                      int revision)
-{
-    e->equipment_id = keep(m, p->equipment_id);
-    e->content_hash = keep(m, p->hash);
-    e->content = keep(m, p->content);
-    e->study_id = keep(m, p->study_id);
-    e->printed = keep(m, p->printed);
-    e->output = keep(m, p->output);
-    e->payload = keep(m, p->payload);
-    e->reason = keep(m, p->reason);
-    e->revision = revision;
-    e->volume = p->volume;
-    e->page = p->page;
-    e->current = 1;
-    return e->equipment_id && e->content_hash && e->printed ? 0 : -1;
-}
-
-/* Same content printed again: keep the revision, note where it now is. */
-static int reprint_same(tw_manifest *m, tw_manifest_entry *cur, const tw_manifest_print *p)
-{
-    char *printed = keep(m, p->printed), *output = keep(m, p->output);
-    char *payload = keep(m, p->payload);
-    if (!printed || (p->output && !output) || (p->payload && !payload))
-        return -1;
-    cur->printed = printed;
-    cur->output = output;
-    cur->payload = payload;
-    cur->volume = p->volume;
-    cur->page = p->page;
-    return cur->revision;
-}
-
-int tw_manifest_record(tw_manifest *m, const tw_manifest_print *p)
-{
-    size_t ci;
-    int has_cur = tw_map_get(&m->current, p->equipment_id, &ci);
-    if (has_cur && !strcmp(m->entries[ci].content_hash, p->hash))
-        return reprint_same(m, &m->entries[ci], p);
-    tw_manifest_entry *e = entry_new(m);
-    if (!e)
-        return -1;
-    int revision = has_cur ? m->entries[ci].revision + 1 : 1;
-    char *diff = has_cur ? tw_manifest_changes(m->entries[ci].content, p->content) : NULL;
-    char *changes = keep(m, diff);
-    free(diff);
-    char *superseded_on = has_cur ? keep(m, p->printed) : NULL;
-    /* The index holds pointers to the equipment ID strings, which never move, and array
-     * positions, so one put keeps it right (rebuilding it per record made printing quadratic).
-     * Put before committing: on failure the manifest is unchanged. */
-    if (fill_entry(m, e, p, revision) != 0 || (has_cur && (!changes || !superseded_on)) ||
-        tw_map_put(&m->current, e->equipment_id, m->count) != 0) {
-        memset(e, 0, sizeof *e); /* its strings stay in the arena, unused */
-        return -1;
-    }
-    e->changes = changes;
-    m->count++;
-    if (has_cur) {
-        m->entries[ci].current = 0;
-        m->entries[ci].superseded_on = superseded_on;
-    }
-    return revision;
-}
-
-/* ---- saving --------------------------------------------------------------------------------- */
-
-static int add_str(cJSON *o, const char *key, const char *v)
-{
-    return (v ? cJSON_AddStringToObject(o, key, v) : cJSON_AddNullToObject(o, key)) ? 0 : -1;
-}
-
-static cJSON *entry_json(const tw_manifest_entry *e)
-{
-    cJSON *o = cJSON_CreateObject();
-    if (!o)
-        return NULL;
-    int bad = add_str(o, "equipment_id", e->equipment_id);
-    bad |= !cJSON_AddNumberToObject(o, "revision", e->revision);
-    bad |= add_str(o, "status", e->current ? "current" : "superseded");
-    bad |= add_str(o, "content_hash", e->content_hash);
-    bad |= add_str(o, "study_id", e->study_id);
-    bad |= add_str(o, "printed", e->printed);
-    bad |= add_str(o, "output", e->output);
-    bad |= !cJSON_AddNumberToObject(o, "volume", e->volume);
-    bad |= !cJSON_AddNumberToObject(o, "page", e->page);
-    bad |= add_str(o, "payload", e->payload);
-    bad |= add_str(o, "reason", e->reason);
-    bad |= add_str(o, "changes", e->changes);
-    bad |= add_str(o, "superseded_on", e->superseded_on);
-    bad |= add_str(o, "content", e->content);
-    return bad ? NULL : o; /* in the arena: nothing to delete */
-}
-
-/* One entry as cJSON_Print() prints it two levels deep: every line after the first indented
- * by two more tabs. (cJSON escapes line breaks inside strings, so each '\n' is layout.) The
- * entry's tree and text are made in arena a, emptied afterwards. */
-static int write_entry(FILE *fp, const tw_manifest_entry *e, int first, tw_arena *a)
-{
-    json_in_arena(a);
-    cJSON *o = entry_json(e);
-    char *text = o ? cJSON_Print(o) : NULL;
-    json_in_heap();
-    if (!text) {
-        tw_arena_free(a);
-        return -1;
-    }
-    int bad = !first && fputs(", ", fp) < 0;
-    for (const char *p = text; !bad && *p;) {
-        const char *nl = strchr(p, '\n');
-        size_t n = nl ? (size_t)(nl - p) + 1 : strlen(p);
-        bad = fwrite(p, 1, n, fp) != n || (nl && fputs("\t\t", fp) < 0);
-        p += n;
-    }
-    tw_arena_free(a);
-    return bad ? -1 : 0;
-}
-
-/* Written entry by entry, byte for byte what cJSON_Print() gives for the whole document, so
- * that a large manifest never needs its whole JSON tree in memory (100,000 labels would take
- * some 300 MiB). */
-int tw_manifest_save(tw_manifest *m, char *err, size_t errlen)
-{
-    tw_atomic a;
-    if (tw_manifest_write(m, &a, err, errlen) != 0)
-        return -1;
-    return tw_atomic_commit(&a, err, errlen);
-}
-
-int tw_manifest_write(tw_manifest *m, tw_atomic *a, char *err, size_t errlen)
-{
-    if (tw_atomic_open(a, m->path, err, errlen) != 0)
-        return -1;
-    int bad = fputs("{\n\t\"labels\":\t[", a->fp) < 0;
-    tw_arena entry = {0};
-    for (size_t i = 0; !bad && i < m->count; i++)
-        bad = write_entry(a->fp, &m->entries[i], i == 0, &entry) != 0;
-    if (!bad)
-        bad = fprintf(a->fp, "],\n\t\"format\":\t\"%s\",\n\t\"version\":\t%d\n}\n",
-                      MANIFEST_FORMAT, MANIFEST_VERSION) < 0;
+    for (size_t i = 0; !bad && i < on; i++)
+        if (find_key(ol, on, &ol[i]) == &ol[i] && !find_key(nl, nn, &ol[i]))
+            bad = add_change(&buf, &len, &cap, &ol[i], &ol[i], NULL);
     if (bad) {
-        snprintf(err, errlen, "%s: out of memory or write error while writing the manifest",
-                 m->path);
-        tw_atomic_abort(a);
-        return -1;
+        free(buf);
+        return NULL;
     }
-    return tw_atomic_prepare(a, err, errlen);
+    return buf;
 }
 
 void tw_manifest_close(tw_manifest *m)
@@ -500,10 +351,5 @@ void tw_manifest_close(tw_manifest *m)
     free(m->entries);
     tw_arena_free(&m->strings);
     tw_map_free(&m->current);
-    /* Only tw_manifest_open() takes a lock; a zeroed struct (lock_fd 0) must not close stdin. */
-    if (m->path && m->lock_fd >= 0)
-        close(m->lock_fd); /* closing releases the flock */
-    free(m->path);
     memset(m, 0, sizeof *m);
-    m->lock_fd = -1;
 }

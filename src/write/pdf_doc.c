@@ -2,6 +2,7 @@
 #include "write/tw_pdf_doc.h"
 
 #include <math.h>
+#include <errno.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -180,9 +181,16 @@ int tw_pdf_doc_write(tw_pdf_doc *d, const char *path, const char *target, char *
         snprintf(err, errlen, "%s: not written: %s", target, why);
         return -1;
     }
+    errno = 0;
     if (HPDF_SaveToFile(d->pdf, path) != HPDF_OK || d->error) {
+        int e = errno;
         tw_pdf_doc_check(d, why, sizeof why);
-        snprintf(err, errlen, "%s: cannot write: %s", target, d->error ? why : "PDF library error");
+        if (e == ENOSPC || e == EDQUOT || e == EFBIG) /* libharu says only "file I/O" */
+            snprintf(err, errlen, "%s while writing %s", e == ENOSPC ? "disk full"
+                     : e == EDQUOT ? "disk quota exceeded" : "file size limit reached", target);
+        else
+            snprintf(err, errlen, "%s: cannot write: %s", target,
+                     d->error ? why : "PDF library error");
         return -1;
     }
     d->saved = 1;
@@ -582,23 +590,19 @@ double tw_qr_module_pt(int modules, double side, double dpi, int min_dots)
     return m >= 0.5 ? m : 0;
 }
 
-/* The symbol as one 1-bit image on a white quiet zone, one pixel per module (1 = white in
- * DeviceGray with the default /Decode [0 1], ISO 32000-1 8.9.5.2), Flate-compressed with the
- * rest of the document: about 300 bytes per label, where rectangles would take kilobytes of
- * content and an 8-bit image eight times the data to compress (it cost a third of the run
- * time). Scaled by a whole number of printer dots it prints with sharp edges; /Interpolate is
- * false by default (ISO 32000-1 8.9.5.3), so viewers do not smooth it.
+/* The symbol as one image on a white quiet zone, one pixel per module, two bits a pixel in
+ * DeviceGray (0 black, 3 white; default /Decode, ISO 32000-1 8.9.5.2), stored as it is (an
+ * image of a few hundred bytes) rather than as rectangles in the content stream. Scaled by a
+ * whole number of printer dots it prints with sharp edges; /Interpolate is false by default
+ * (ISO 32000-1 8.9.5.3), so viewers do not smooth it.
  *
- * libharu sizes a raw image as width * height / 8 bytes, without padding each row to a whole
- * byte as PDF does, so the image is made a multiple of 8 pixels wide: up to 3 white columns
- * left of the symbol and up to 4 right of it, inside the 4-module quiet zone. (libharu's CCITT
- * loader, HPDF_Image_LoadRaw1BitImageFromMem, is not used: a document freed without being
- * saved leaks its DecodeParms dictionary - checked with valgrind - and its encoder state is
- * a process-wide global, so it cannot run on two documents at once.) */
-/* Two bits a pixel (0 black, 3 white) rather than one: libharu stores a 1-bit image through
- * its CCITT encoder, which took 8 % of the work of a label; a 2-bit image is stored as it is
- * (370 bytes for a 37-module code). A row is padded to whole bytes with white pixels split
- * between both sides. */
+ * Two bits rather than one because libharu stores a 1-bit image only through its CCITT
+ * loader (HPDF_Image_LoadRaw1BitImageFromMem), which leaks its DecodeParms dictionary when a
+ * document is freed unsaved and keeps its encoder state in a process-wide global, so two
+ * documents cannot use it at once. libharu sizes a raw image as width * height * bits / 8
+ * bytes without padding each row as PDF does, so a row is made a whole number of bytes wide
+ * with white pixels split between both sides, inside the 4-module quiet zone. The measured
+ * costs of the choices made here are in docs/performance.md. */
 #define QR_BITS 2
 #define QR_PIXELS_PER_BYTE (8 / QR_BITS)
 
@@ -613,7 +617,7 @@ int tw_draw_qr(HPDF_Doc pdf, HPDF_Page p, const tw_qr *q, double x, double y, do
     if (!bits)
         return -1;
     /* Built a byte at a time without a branch on the module: the modules of a code are as good
-     * as random, and a mispredicted branch each took a tenth of the drawing of a label. */
+     * as random, so a branch would be mispredicted half the time. */
     for (size_t r = 0; r < w; r++) {
         const unsigned char *row = q->dark + r * w;
         unsigned char *out = bits + r * stride;

@@ -946,7 +946,8 @@ static void finish(plan *P)
     tw_pdf_doc_close(&P->pdf);
 }
 
-int tw_permit_write(const tw_permit *in, const char *path, char *err, size_t errlen)
+static int permit_write(const tw_permit *in, const char *tmp, const char *path, char *err,
+                        size_t errlen)
 {
     plan P;
     memset(&P, 0, sizeof P);
@@ -965,11 +966,23 @@ int tw_permit_write(const tw_permit *in, const char *path, char *err, size_t err
     paginate(&P);
     if (draw_pages(&P, err, errlen) != 0)
         goto done;
-    if (tw_pdf_doc_save(&P.pdf, path, err, errlen) == 0)
+    if ((tmp ? tw_pdf_doc_write(&P.pdf, tmp, path, err, errlen)
+             : tw_pdf_doc_save(&P.pdf, path, err, errlen)) == 0)
         rc = P.pages;
 done:
     finish(&P);
     return rc;
+}
+
+int tw_permit_write(const tw_permit *in, const char *path, char *err, size_t errlen)
+{
+    return permit_write(in, NULL, path, err, errlen);
+}
+
+int tw_permit_write_tmp(const tw_permit *in, const char *tmp, const char *path, char *err,
+                        size_t errlen)
+{
+    return permit_write(in, tmp, path, err, errlen);
 }
 
 char *tw_permit_file_name(const char *work_order, size_t index)

@@ -26,7 +26,7 @@
 
 #include "base/tw_atomic.h"
 #include "base/tw_exit.h"
-#include "write/tw_manifest.h"
+#include "write/tw_registry.h"
 #include "write/tw_label_pdf.h"
 #include "write/tw_qr.h"
 #include "base/tw_util.h"
@@ -38,14 +38,6 @@
 #define QR_MAX_THREADS 4
 /* Most worker processes drawing volumes when the caller leaves it to us. */
 #define MAX_JOBS 4
-
-char *tw_manifest_path_for(const char *pdf_path)
-{
-    size_t n = strlen(pdf_path);
-    if (n > 4 && tw_strcaseeq(pdf_path + n - 4, ".pdf"))
-        n -= 4;
-    return tw_asprintf("%.*s.manifest.json", (int)n, pdf_path);
-}
 
 char *tw_volume_path(const char *pdf_path, size_t volume)
 {
@@ -177,7 +169,8 @@ static void qr_pipe_stop(qr_pipe *q)
 
 typedef struct {
     char *path;          /* final name */
-    char *tmp;           /* written here first; NULL once published or removed */
+    char *tmp;           /* written here first; NULL once staged or removed */
+    char *pending;       /* named once written in full, journaled in the registry */
 } volume;
 
 /* What the workers share, in memory shared across fork() when volumes are drawn in worker
@@ -347,6 +340,7 @@ static void volumes_remove(volume *v, size_t n)
         }
         free(v[i].tmp);
         free(v[i].path);
+        free(v[i].pending);
     }
     free(v);
 }
@@ -369,16 +363,14 @@ static void placed_free(placed *p, size_t n)
     volumes_remove(p->vols, p->nvols);
 }
 
-/* Payloads carry the revision the manifest will give each label. */
-static int make_payloads(const tw_label *labels, size_t n, const tw_manifest *m,
+/* Payloads carry the revision the registry will give each label. */
+static int make_payloads(const tw_label *labels, size_t n, const int *revision,
                          const tw_print_opts *o, placed *p, char *err, size_t errlen)
 {
     for (size_t i = 0; i < n; i++) {
         const tw_label *l = &labels[i];
-        const char *id = l->value[TW_L_EQUIPMENT_ID];
-        int rev = tw_manifest_next_revision(m, id, l->hash);
-        p->payloads[i] = tw_qr_payload(o->site->record_link, l->value[TW_L_STUDY_ID], id, rev,
-                                       l->hash);
+        p->payloads[i] = tw_qr_payload(o->site->record_link, l->value[TW_L_STUDY_ID],
+                                       l->value[TW_L_EQUIPMENT_ID], revision[i], l->hash);
         if (!p->payloads[i]) {
             snprintf(err, errlen, "out of memory");
             return TW_EXIT_IO;
@@ -454,9 +446,11 @@ static void work_volumes(const tw_label *labels, size_t n, const tw_print_opts *
         size_t v = atomic_fetch_add(&s->prog->next, 1);
         if (v >= p->nvols || lower_failed(s, v))
             break;
-        tw_label_doc *doc = tw_label_doc_new(o->layout, o->site, o->print_date, err, sizeof err);
+        int status;
+        tw_label_doc *doc = tw_label_doc_new_status(o->layout, o->site, o->print_date, &status,
+                                                    err, sizeof err);
         if (!doc) {
-            volume_failed(s, v, TW_EXIT_IO, err);
+            volume_failed(s, v, status, err);
             break;
         }
         size_t first = v * p->per_volume;
@@ -557,41 +551,70 @@ static int page_of(const placed *p, size_t i)
     return (int)(i % p->per_volume / (size_t)p->per_page) + 1;
 }
 
-/* Record every label and write the manifest in full to out, not yet published. */
-static int record_all(tw_manifest *m, const tw_label *labels, size_t n, const tw_print_opts *o,
-                      const placed *p, tw_atomic *out, char *err, size_t errlen)
+/* What the registry records for each label (drafts are left out), made while the workers
+ * draw. */
+typedef struct {
+    tw_registry_print *items;
+    char **contents, **outputs;
+    size_t n;
+} records;
+
+static void records_free(records *rec, size_t n)
 {
     for (size_t i = 0; i < n; i++) {
-        if (labels[i].draft)
+        free(rec->contents ? rec->contents[i] : NULL);
+        free(rec->outputs ? rec->outputs[i] : NULL);
+    }
+    free(rec->items);
+    free(rec->contents);
+    free(rec->outputs);
+}
+
+static int make_records(records *rec, const tw_label *labels, size_t n, const tw_print_opts *o,
+                        const placed *p, char *const *lowered, char *err, size_t errlen)
+{
+    rec->items = calloc(n ? n : 1, sizeof *rec->items);
+    rec->contents = calloc(n ? n : 1, sizeof *rec->contents);
+    rec->outputs = calloc(n ? n : 1, sizeof *rec->outputs);
+    if (!rec->items || !rec->contents || !rec->outputs)
+        goto oom;
+    for (size_t i = 0; i < n; i++) {
+        const tw_label *l = &labels[i];
+        if (l->draft)
             continue;
         size_t v = i / p->per_volume;
         char *copy = tw_strdup(p->vols[v].path);
-        char *content = tw_label_canonical(&labels[i]);
-        tw_manifest_print rec = {
-            .equipment_id = labels[i].value[TW_L_EQUIPMENT_ID],
-            .hash = labels[i].hash,
-            .content = content,
-            .study_id = labels[i].value[TW_L_STUDY_ID],
-            .printed = o->print_date,
-            .output = copy ? basename(copy) : NULL,
+        rec->outputs[i] = copy ? tw_strdup(basename(copy)) : NULL;
+        free(copy);
+        rec->contents[i] = tw_label_canonical(l);
+        if (!rec->outputs[i] || !rec->contents[i])
+            goto oom;
+        int lowers = lowered[i] && *lowered[i];
+        tw_registry_print *r = &rec->items[rec->n++];
+        *r = (tw_registry_print){
+            .equipment_id = l->value[TW_L_EQUIPMENT_ID],
+            .hash = l->hash,
+            .content = rec->contents[i],
             .payload = p->payloads[i],
+            .study_id = l->value[TW_L_STUDY_ID],
+            .study_date = l->value[TW_L_STUDY_DATE],
+            .output = rec->outputs[i],
             .reason = o->reason,
+            .approved_by = lowers ? o->approved_by : NULL,
+            .lowered = lowers ? lowered[i] : NULL,
             .volume = (int)v + 1,
             .page = page_of(p, i),
         };
-        int rev = content && copy ? tw_manifest_record(m, &rec) : -1;
-        free(content);
-        free(copy);
-        if (rev < 0) {
-            snprintf(err, errlen, "out of memory while recording the manifest");
-            return TW_EXIT_IO;
-        }
+        tw_hazard_of_label(l, o->site, &r->hazard);
     }
-    return tw_manifest_write(m, out, err, errlen) == 0 ? TW_EXIT_OK : TW_EXIT_IO;
+    return TW_EXIT_OK;
+oom:
+    snprintf(err, errlen, "out of memory while preparing the registry records");
+    return TW_EXIT_IO;
 }
 
 /* The outcome of the volumes once every worker is done: TW_EXIT_OK when all are written to their
- * temporary files (none published yet) on the pages the manifest was told. */
+ * temporary files (none published yet) on the pages the registry will be told. */
 static int volumes_outcome(const placed *p, const shared_run *s, size_t n, char *err,
                            size_t errlen)
 {
@@ -614,24 +637,25 @@ static int volumes_outcome(const placed *p, const shared_run *s, size_t n, char 
     return TW_EXIT_OK;
 }
 
-/* Draw and write every volume, and record every label in the manifest written to mout (not yet
- * published). With worker processes, this process records the labels while they draw: the page
- * of each label follows from its place in its volume, and is checked against what the workers
- * drew before anything is published. */
-static int write_and_record(tw_manifest *m, const tw_label *labels, size_t n,
-                            const tw_print_opts *o, placed *p, shared_run *s, tw_atomic *mout,
-                            char *err, size_t errlen)
+/* Draw and write every volume to its temporary file, and prepare what the registry records.
+ * With worker processes, this process prepares the records while they draw: the page of each
+ * label follows from its place in its volume, and is checked against what the workers drew
+ * before anything is published. */
+static int write_volumes(records *rec, const tw_label *labels, size_t n, const tw_print_opts *o,
+                         placed *p, shared_run *s, char *const *lowered, char *err,
+                         size_t errlen)
 {
     int workers = worker_count(p->jobs, p->nvols);
     if (workers <= 1) {
         long cpus = sysconf(_SC_NPROCESSORS_ONLN);
         work_volumes(labels, n, o, p, s, cpus > QR_MAX_THREADS ? QR_MAX_THREADS : (int)cpus);
         int rc = volumes_outcome(p, s, n, err, errlen);
-        return rc == TW_EXIT_OK ? record_all(m, labels, n, o, p, mout, err, errlen) : rc;
+        return rc == TW_EXIT_OK ? make_records(rec, labels, n, o, p, lowered, err, errlen) : rc;
     }
     pid_t pids[MAX_JOBS];
     int started = start_workers(labels, n, o, p, s, workers, pids, err, errlen);
-    int rc = started < workers ? TW_EXIT_IO : record_all(m, labels, n, o, p, mout, err, errlen);
+    int rc = started < workers ? TW_EXIT_IO
+                               : make_records(rec, labels, n, o, p, lowered, err, errlen);
     if (rc != TW_EXIT_OK)
         atomic_store(&s->prog->failed_min, 0); /* the workers stop at their next label */
     char werr[512] = "";
@@ -645,23 +669,78 @@ static int write_and_record(tw_manifest *m, const tw_label *labels, size_t n,
     return volumes_outcome(p, s, n, err, errlen);
 }
 
-/* Rename every volume into place, in order, then the manifest, once all are written in full:
- * with SIGINT, SIGTERM and SIGHUP held back, so that a run that is interrupted leaves the
- * earlier PDFs and manifest as they were, never some replaced and others not. (The volumes go
- * first: a SIGKILL in the microseconds between the renames leaves at worst a manifest that lags
- * behind, which printing again brings up to date with the same revisions.) */
-static int publish_all(placed *p, tw_atomic *manifest, char *err, size_t errlen)
+static int fsync_dir_of(const char *path)
 {
-    int rc = TW_EXIT_OK;
-    tw_atomic_hold_signals();
-    for (size_t v = 0; v < p->nvols && rc == TW_EXIT_OK; v++) {
-        if (tw_atomic_publish(p->vols[v].tmp, p->vols[v].path, err, errlen) != 0)
+    char *copy = tw_strdup(path);
+    int fd = copy ? open(dirname(copy), O_RDONLY | O_DIRECTORY | O_CLOEXEC) : -1;
+    free(copy);
+    int rc = fd >= 0 ? fsync(fd) : -1;
+    if (fd >= 0)
+        close(fd);
+    return rc;
+}
+
+/* Journal the run, then give every written volume its pending name (".NAME.PID.pending"
+ * beside it). A kill from here on leaves files the registry knows of: the next opener removes
+ * them, or publishes them once the run is recorded. */
+static int stage_volumes(tw_registry *reg, placed *p, long long *run, char *err, size_t errlen)
+{
+    const char **pend = calloc(p->nvols, sizeof *pend), **tgt = calloc(p->nvols, sizeof *tgt);
+    int rc = pend && tgt ? TW_EXIT_OK : TW_EXIT_IO;
+    for (size_t v = 0; rc == TW_EXIT_OK && v < p->nvols; v++) {
+        char *c1 = tw_strdup(p->vols[v].path), *c2 = tw_strdup(p->vols[v].path);
+        p->vols[v].pending = c1 && c2 ? tw_asprintf("%s/.%s.%ld.pending", dirname(c1),
+                                                    basename(c2), (long)getpid())
+                                      : NULL;
+        free(c1);
+        free(c2);
+        pend[v] = p->vols[v].pending;
+        tgt[v] = p->vols[v].path;
+        if (!pend[v])
             rc = TW_EXIT_IO;
-        free(p->vols[v].tmp); /* published, or removed by tw_atomic_publish */
-        p->vols[v].tmp = NULL;
     }
-    if (rc == TW_EXIT_OK && tw_atomic_commit(manifest, err, errlen) != 0)
+    if (rc != TW_EXIT_OK)
+        snprintf(err, errlen, "out of memory");
+    else
+        rc = tw_registry_stage(reg, pend, tgt, p->nvols, run, err, errlen);
+    free(pend);
+    free(tgt);
+    for (size_t v = 0; rc == TW_EXIT_OK && v < p->nvols; v++) {
+        volume *vol = &p->vols[v];
+        unlink(vol->pending); /* a stale one from a run that reused this process number */
+        int ok = strncmp(vol->tmp, "/proc/self/fd/", 14) == 0
+                     ? linkat(AT_FDCWD, vol->tmp, AT_FDCWD, vol->pending, AT_SYMLINK_FOLLOW) == 0
+                     : rename(vol->tmp, vol->pending) == 0;
+        if (!ok) {
+            snprintf(err, errlen, "%s: cannot write: %s", vol->path, strerror(errno));
+            rc = TW_EXIT_IO;
+            break;
+        }
+        tw_atomic_forget(vol->tmp); /* closes an unnamed one */
+        free(vol->tmp);
+        vol->tmp = NULL;
+    }
+    if (rc == TW_EXIT_OK && p->nvols && fsync_dir_of(p->vols[0].path) != 0) {
+        snprintf(err, errlen, "%s: cannot flush the directory: %s", p->vols[0].path,
+                 strerror(errno));
         rc = TW_EXIT_IO;
+    }
+    return rc;
+}
+
+/* Record the run and rename every volume into place, with SIGINT, SIGTERM and SIGHUP held
+ * back so that an interrupted run is recorded and published whole or not at all. (SIGKILL
+ * cannot be held: the journal finishes what it interrupts, tw_registry.h.) */
+static int publish_all(tw_registry *reg, long long run, const records *rec,
+                       const tw_print_opts *o, char *err, size_t errlen)
+{
+    tw_atomic_hold_signals();
+    int rc = tw_registry_record(reg, run, rec->items, rec->n, o->removed, o->removed_count,
+                                o->print_date, err, errlen);
+    if (rc == TW_EXIT_OK)
+        rc = tw_registry_finish(reg, run, err, errlen);
+    else
+        tw_registry_abandon(reg, run);
     tw_atomic_release_signals();
     return rc;
 }
@@ -678,58 +757,104 @@ int tw_print_labels_in_volumes(const tw_label *labels, size_t n, const tw_print_
     return tw_print_labels_jobs(labels, n, o, volume_size, 0, err, errlen);
 }
 
+/* The labels that would lower the hazard without an approver: refused, with what would go
+ * down, before anything is drawn. */
+static int change_control(const tw_label *labels, size_t n, char *const *lowered,
+                          const tw_print_opts *o, char *err, size_t errlen)
+{
+    size_t count = 0, used = 0;
+    err[0] = '\0';
+    for (size_t i = 0; i < n; i++) {
+        if (!lowered[i] || !*lowered[i] || o->approved_by)
+            continue;
+        if (count++ == 0)
+            used = (size_t)snprintf(err, errlen, "refused: ");
+        if (used < errlen)
+            used += (size_t)snprintf(err + used, errlen - used, "%s%s: %s", count > 1 ? "; " : "",
+                                     labels[i].value[TW_L_EQUIPMENT_ID], lowered[i]);
+    }
+    if (!count)
+        return TW_EXIT_OK;
+    if (used < errlen)
+        snprintf(err + used, errlen - used, ". %zu label%s would lower the hazard against the "
+                 "posted revision; this needs an approval: check the study, then print again "
+                 "with --approved-by NAME --reason TEXT (nothing was written)",
+                 count, count == 1 ? "" : "s");
+    return TW_EXIT_IO;
+}
+
+/* A refused run writes nothing: a registry that it created, and that therefore holds no
+ * revision, is removed with its SQLite side files and its lock file. */
+static void forget_new_registry(const char *path)
+{
+    static const char *const suffix[] = {"", "-wal", "-shm", "-journal", ".lock"};
+    for (size_t i = 0; i < sizeof suffix / sizeof suffix[0]; i++) {
+        char *f = tw_asprintf("%s%s", path, suffix[i]);
+        if (f)
+            unlink(f);
+        free(f);
+    }
+}
+
 int tw_print_labels_jobs(const tw_label *labels, size_t n, const tw_print_opts *o,
                          size_t volume_size, int jobs, char *err, size_t errlen)
 {
-    char *mpath = o->manifest_path ? tw_strdup(o->manifest_path) : tw_manifest_path_for(o->out_pdf);
     placed p = {calloc(n ? n : 1, sizeof(char *)), NULL, tw_layout_per_page(o->layout), 0,
                 NULL, 0, jobs};
+    int *revision = calloc(n ? n : 1, sizeof *revision);
+    char **lowered = calloc(n ? n : 1, sizeof *lowered);
     shared_run s = {0};
-    tw_manifest m;
-    tw_atomic manifest_out;
-    memset(&manifest_out, 0, sizeof manifest_out);
-    tw_diags md;
-    tw_diags_init(&md);
-    int rc = TW_EXIT_IO;
-    if (!mpath || !p.payloads) {
+    records rec = {0};
+    tw_registry reg = {0};
+    reg.lock_fd = -1;
+    long long run = 0;
+    int rc = TW_EXIT_IO, registry_is_new = 0;
+    if (!p.payloads || !revision || !lowered) {
         snprintf(err, errlen, "out of memory");
-        goto done_nomanifest;
+        goto done;
     }
     if (n == 0) {
         snprintf(err, errlen, "%s: not written: no labels", o->out_pdf);
-        goto done_nomanifest;
+        goto done;
     }
-    if (tw_manifest_open(mpath, &m, &md) != 0) {
-        const tw_diag *g = md.count ? &md.items[0] : NULL;
-        const char *msg = g && g->message ? g->message : "cannot open the manifest";
-        if (g && g->path) /* name the field too: "labels[0]: equipment_id: ..." */
-            snprintf(err, errlen, "%s:%s: %s%s%s", mpath, g->path, g->field ? g->field : "",
-                     g->field ? ": " : "", msg);
-        else
-            snprintf(err, errlen, "%s", msg);
-        /* a finding at a JSON path is about the content; without one the file could not be
-         * locked or read */
-        rc = g && g->path ? TW_EXIT_DATA : TW_EXIT_IO;
-        goto done_nomanifest;
+    if (!o->registry_path) {
+        snprintf(err, errlen, "no registry named; expected the site's registry (site.json "
+                 "\"registry\", or --manifest PATH)");
+        rc = TW_EXIT_USAGE;
+        goto done;
     }
-    rc = plan_volumes(n, o, volume_size, &p, err, errlen);
+    registry_is_new = access(o->registry_path, F_OK) != 0;
+    rc = tw_registry_open(&reg, o->registry_path, 1, err, errlen);
+    if (rc == TW_EXIT_OK)
+        rc = tw_registry_plan(&reg, labels, n, o->site, revision, lowered, err, errlen);
+    if (rc == TW_EXIT_OK)
+        rc = change_control(labels, n, lowered, o, err, errlen);
+    if (rc == TW_EXIT_OK)
+        rc = plan_volumes(n, o, volume_size, &p, err, errlen);
     if (rc == TW_EXIT_OK && shared_open(&s, n, p.nvols) != 0) {
         snprintf(err, errlen, "out of memory");
         rc = TW_EXIT_IO;
     }
     p.pages = s.pages;
     if (rc == TW_EXIT_OK)
-        rc = make_payloads(labels, n, &m, o, &p, err, errlen);
+        rc = make_payloads(labels, n, revision, o, &p, err, errlen);
     if (rc == TW_EXIT_OK)
-        rc = write_and_record(&m, labels, n, o, &p, &s, &manifest_out, err, errlen);
+        rc = write_volumes(&rec, labels, n, o, &p, &s, lowered, err, errlen);
+    if (rc == TW_EXIT_OK && (rc = stage_volumes(&reg, &p, &run, err, errlen)) != TW_EXIT_OK &&
+        run)
+        tw_registry_abandon(&reg, run);
     if (rc == TW_EXIT_OK)
-        rc = publish_all(&p, &manifest_out, err, errlen);
-    tw_atomic_abort(&manifest_out); /* accepts a committed one */
-    tw_manifest_close(&m);
-done_nomanifest:
+        rc = publish_all(&reg, run, &rec, o, err, errlen);
+done:
+    tw_registry_close(&reg);
+    if (rc != TW_EXIT_OK && registry_is_new)
+        forget_new_registry(o->registry_path);
+    records_free(&rec, n);
+    for (size_t i = 0; lowered && i < n; i++)
+        free(lowered[i]);
+    free(lowered);
+    free(revision);
     placed_free(&p, n);
     shared_close(&s, n);
-    free(mpath);
-    tw_diags_free(&md);
     return rc;
 }

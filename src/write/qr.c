@@ -57,9 +57,12 @@ static int is_unreserved(unsigned char c)
 static void sb_put_encoded(strbuf *b, const char *s, int upper)
 {
     static const char hex[] = "0123456789ABCDEF";
+    /* "." and ".." as a whole path segment are dot-segments that a client removes (RFC 3986
+     * section 5.2.4): the link would name another record. Encoded, they stay data. */
+    int dot_segment = s && (!strcmp(s, ".") || !strcmp(s, ".."));
     for (const unsigned char *p = (const unsigned char *)(s ? s : ""); *p; p++) {
         unsigned char c = upper && *p >= 'a' && *p <= 'z' ? (unsigned char)(*p - 'a' + 'A') : *p;
-        if (is_unreserved(c)) {
+        if (is_unreserved(c) && !(dot_segment && c == '.')) {
             sb_put(b, (const char *)&c, 1);
         } else {
             char esc[3] = {'%', hex[c >> 4], hex[c & 15]};

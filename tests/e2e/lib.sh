@@ -11,8 +11,10 @@ PASSES=0
 FAILS=0
 RESULTS_FILE=${TW_RESULTS_FILE:-/dev/null}
 
-ok()   { PASSES=$((PASSES + 1)); echo "  ok   $*"; }
-fail() { FAILS=$((FAILS + 1)); echo "  FAIL $*"; }
+# Each result is recorded as it happens, so a script that ends early still counts what it did;
+# finish records "done", and the runner names a script without it as a failure.
+ok()   { PASSES=$((PASSES + 1)); echo "1 0" >>"$RESULTS_FILE"; echo "  ok   $*"; }
+fail() { FAILS=$((FAILS + 1)); echo "0 1" >>"$RESULTS_FILE"; echo "  FAIL $*"; }
 check() { # check "description" command...
     local what=$1; shift
     if "$@" >/dev/null 2>&1; then ok "$what"; else fail "$what"; fi
@@ -47,8 +49,10 @@ qr_of() {
     zbarimg -q --raw "$TW_TMP"/qr-*.png 2>/dev/null | head -n 1
     rm -f "$TW_TMP"/qr-*.png
 }
+# exported REGISTRY: its JSON export in a file beside it (REGISTRY.json), for python3 to read
+exported() { "$TW_BIN" registry export --manifest "$1" >"$1.json" 2>/dev/null; echo "$1.json"; }
 finish() {
-    echo "$PASSES $FAILS" >>"$RESULTS_FILE"
+    echo "done" >>"$RESULTS_FILE"
     [ "$FAILS" -eq 0 ]
 }
 set -e

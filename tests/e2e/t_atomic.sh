@@ -1,7 +1,9 @@
 #!/usr/bin/env bash
 # t_atomic.sh - nothing lost: a labels run killed midway (SIGTERM, SIGINT, SIGHUP, SIGKILL; while
 # it computes and while it is writing its output, in one PDF or in volumes) leaves the earlier
-# PDF and manifest exactly as they were and no partial or temporary file beside them. The large input is generated here;
+# PDF and registry as they were (or, past the point of recording, both the new ones), and once
+# the registry is next opened no partial or temporary file beside them. The large input is
+# generated here;
 # TW_ATOMIC_BUSES sets its size (default 2000 buses).
 source "$(dirname "$0")/lib.sh"
 
@@ -17,28 +19,37 @@ awk -v n="$N" -v h="$HEADER" 'BEGIN { print h
 head -n 4 "$TW_TMP/big.csv" >"$TW_TMP/small.csv"
 
 PDF="$DIR/labels.pdf"
-MANIFEST="$DIR/labels.manifest.json"
+MANIFEST="$DIR/tagwright-registry.db"
 run labels "$TW_TMP/small.csv" --out "$PDF" --date 2025-02-28
 expect_rc 0 "the earlier run prints 3 labels"
+# the registry as a reader sees it (the first opener after a killed run finishes or clears it)
+registry_state() { "$TW_BIN" registry export --manifest "$MANIFEST" 2>&1 | sha256sum; }
 before_pdf=$(sha256sum <"$PDF")
-before_manifest=$(sha256sum <"$MANIFEST")
+before_manifest=$(registry_state)
 cp "$PDF" "$TW_TMP/earlier.pdf"
-cp "$MANIFEST" "$TW_TMP/earlier.manifest.json"
+cp "$MANIFEST" "$TW_TMP/earlier.registry"
+restore() {
+    cp "$TW_TMP/earlier.pdf" "$PDF"
+    rm -f "$MANIFEST-wal" "$MANIFEST-shm"
+    cp "$TW_TMP/earlier.registry" "$MANIFEST"
+}
 
 # both_new: a signal held back while both outputs were being renamed ends the run just after;
 # then the PDF and the manifest must both be the complete new ones.
 both_new() {
     [ "$(pdfinfo "$PDF" 2>/dev/null | sed -n 's/^Pages: *//p')" = "$N" ] &&
-        grep -q "\"AT-PNL-$(printf '%05d' $((N - 1)))\"" "$MANIFEST"
+        "$TW_BIN" registry export --manifest "$MANIFEST" --format csv |
+            grep -q "^AT-PNL-$(printf '%05d' $((N - 1))),1,current"
 }
 
-# only_outputs: the directory holds the PDF, the manifest and its lock file, nothing else.
+# only_outputs: the directory holds the PDF, the registry and its lock file, nothing else.
 only_outputs() {
     local f
     for f in "$DIR"/* "$DIR"/.[!.]*; do
         [ -e "$f" ] || continue
         case $(basename "$f") in
-        labels.pdf | labels.manifest.json | labels.manifest.json.lock) ;;
+        labels.pdf | tagwright-registry.db | tagwright-registry.db.lock) ;;
+        tagwright-registry.db-wal | tagwright-registry.db-shm) ;;
         *) echo "  unexpected file: $f"; return 1 ;;
         esac
     done
@@ -112,25 +123,23 @@ for run_case in TERM:0.3 TERM:writing INT:0.3 INT:writing HUP:0.3 HUP:writing KI
         else
             fail "$what: the run ended before the signal; raise TW_ATOMIC_BUSES"
         fi
+        state=$(registry_state) # the next run: finishes a recorded run, clears an unrecorded one
         if [ "$(sha256sum <"$PDF")" = "$before_pdf" ]; then
             ok "$what: the earlier PDF is intact"
-            [ "$(sha256sum <"$MANIFEST")" = "$before_manifest" ] &&
-                ok "$what: the earlier manifest is intact" ||
-                fail "$what: the earlier manifest changed without the PDF"
+            [ "$state" = "$before_manifest" ] &&
+                ok "$what: the earlier registry is intact" ||
+                fail "$what: the registry changed without the PDF"
         elif both_new; then
-            ok "$what: the signal came as both outputs were being replaced; both are the new ones"
-            cp "$TW_TMP/earlier.pdf" "$PDF"
-            cp "$TW_TMP/earlier.manifest.json" "$MANIFEST"
+            ok "$what: the signal came once the run was recorded; both are the new ones"
         else
             fail "$what: the earlier PDF changed and the new outputs are not complete"
-            cp "$TW_TMP/earlier.pdf" "$PDF"
-            cp "$TW_TMP/earlier.manifest.json" "$MANIFEST"
         fi
-        only_outputs && ok "$what: no partial or temporary file left" ||
+        only_outputs && ok "$what: no partial or temporary file left once the registry is opened" ||
             fail "$what: files left behind"
+        restore
     }
 done
-# A worker process killed while the parent records the manifest: the run fails with exit 3 and
+# A worker process killed while the parent prepares the records: the run fails with exit 3 and
 # names it, and nothing is published (the parent's signal handler is not involved here).
 if [ -z "${TW_WRAP:-}" ]; then
     set -m

@@ -70,7 +70,7 @@ check_entry() { # check_entry FILE COMMAND EXIT REGEX
     permit)   run permit "$BI/good.csv" --job "$name" --out "$OUTDIR/permit.pdf" --date 2025-02-28 ;;
     manifest) cp "$name" "$MDIR/$name"
               cd "$MDIR"
-              run labels "$BI/good.csv" --manifest "$name" --out "$OUTDIR/out.pdf" --date 2025-02-28 ;;
+              run registry import "$name" --manifest "$MDIR/site.registry" ;;
     *)        popd >/dev/null; fail "$file: unknown command '$cmd' in expect.tsv"; return ;;
     esac
     popd >/dev/null
@@ -144,30 +144,31 @@ run labels results.csv --out out.pdf --manifest results.csv
 expect_rc 1 "--manifest naming the results CSV is refused (not a manifest)"
 cmp -s results.csv "$BI/good.csv" && ok "the results file is still unchanged" || fail "the results file was changed"
 [ ! -e out.pdf ] && ok "no PDF written when the manifest is refused" || fail "out.pdf written"
-run labels "$TW_DATA/core/small.csv" --out posted.pdf --date 2025-02-28
-cp posted.manifest.json posted.keep
+run labels "$TW_DATA/core/small.csv" --out posted.pdf --manifest posted.registry --date 2026-10-01
+cp posted.registry posted.keep
 run permit "$TW_DATA/core/small.csv" --job "$TW_DATA/permit/job.json" \
-    --manifest posted.manifest.json --out posted.manifest.json --date 2025-02-28
+    --manifest posted.registry --out posted.registry --date 2026-10-01
 expect_rc 3 "permit --out naming its --manifest (no --site) is refused"
-cmp -s posted.manifest.json posted.keep && ok "the manifest is unchanged" ||
-    fail "the manifest was overwritten by the permit"
+cmp -s posted.registry posted.keep && ok "the registry is unchanged" ||
+    fail "the registry was overwritten by the permit"
 run reprint "$TW_DATA/core/small.csv" --bus E2E-MCC-1 --clearing-time 0.1 --reason test \
-    --manifest posted.manifest.json --out posted.manifest.json --date 2025-03-01
+    --manifest posted.registry --out posted.registry --date 2026-10-02
 expect_rc 3 "reprint --out naming its --manifest (no --site) is refused"
-cmp -s posted.manifest.json posted.keep && ok "the manifest is unchanged by reprint" ||
-    fail "the manifest was overwritten by the reprinted PDF"
+cmp -s posted.registry posted.keep && ok "the registry is unchanged by reprint" ||
+    fail "the registry was overwritten by the reprinted PDF"
 run diff "$TW_DATA/core/small.csv" "$TW_DATA/core/small.csv" \
-    --manifest posted.manifest.json --out posted.manifest.json --date 2025-03-01
+    --manifest posted.registry --out posted.registry --date 2026-10-02
 expect_rc 3 "diff --out naming its --manifest (no --site) is refused"
-cmp -s posted.manifest.json posted.keep && ok "the manifest is unchanged by diff" ||
-    fail "the manifest was overwritten by diff"
-payload=$(sed -n 's/.*"payload":[[:space:]]*"\([^"]*\)".*/\1/p' posted.manifest.json | head -n 1)
+cmp -s posted.registry posted.keep && ok "the registry is unchanged by diff" ||
+    fail "the registry was overwritten by diff"
+payload=$("$TW_BIN" registry export --manifest posted.registry --format csv --status current |
+    grep -io 'https://[^,]*' | head -n 1)
 { printf '%s' "$payload"; repeat 9000 x; printf '\n'; } >long-payload.txt
-run verify --manifest posted.manifest.json - <long-payload.txt
+run verify --manifest posted.registry - <long-payload.txt
 expect_rc 2 "verify: a payload on stdin longer than 8192 bytes is refused, not cut short"
 contains "$ERR" "longer than 8192 bytes" "the message gives the limit"
 printf '%s\n' "$payload" >payload.txt
-run verify --manifest posted.manifest.json - <payload.txt
+run verify --manifest posted.registry - <payload.txt
 expect_rc 0 "verify: the same payload of normal length is current"
 run check no-such-results.csv
 expect_rc 3 "a missing results file is an I/O error"

@@ -1,5 +1,5 @@
 # t_computed_boundary.sh - a missing arc-flash boundary is computed only with the study's own
-# distance exponent, and the label and manifest say so; without one the bus is refused.
+# distance exponent, and the label and registry say so; without one the bus is refused.
 source "$(dirname "$0")/lib.sh"
 run check "$TW_DATA/core/computed-boundary.csv"
 expect_rc 0 "check accepts a boundary it can compute from the study's exponent"
@@ -11,7 +11,7 @@ expect_rc 0 "labels prints the computed boundary"
 text=$(pdftotext "$TW_TMP/c.pdf" - 2>/dev/null)
 contains "$text" "4 ft 10 in (1453 mm)" "the computed boundary, rounded up"
 contains "$text" "computed from incident energy" "the label says the boundary was computed"
-contains "$(cat "$TW_TMP/c.manifest.json")" "boundary_note=computed from incident energy" "the manifest says so too"
+contains "$(cat "$(exported "$TW_TMP/tagwright-registry.db")")" "boundary_note=computed from incident energy" "the registry says so too"
 # Without the study's exponent the boundary is not guessed from a table: the bus is refused.
 sed 's/,1.641$/,/' "$TW_DATA/core/computed-boundary.csv" >"$TW_TMP/noexp.csv"
 run labels "$TW_TMP/noexp.csv" --out "$TW_TMP/n.pdf"

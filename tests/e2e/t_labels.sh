@@ -5,7 +5,9 @@ out="$TW_TMP/labels.pdf"
 run labels "$TW_DATA/core/small.csv" --out "$out" --date 2026-12-01
 expect_rc 0 "labels for a clean study"
 check "the PDF exists" test -s "$out"
-check "the manifest is written beside the PDF" test -s "$TW_TMP/labels.manifest.json"
+check "without a site registry the labels are recorded beside the PDF" test -s "$TW_TMP/tagwright-registry.db"
+contains "$ERR" "recorded in $TW_TMP/tagwright-registry.db" "the run says where the history went"
+exported "$TW_TMP/tagwright-registry.db" >/dev/null
 check "qpdf --check passes" qpdf --check "$out"
 info=$(pdfinfo "$out" | tr -s " ")
 contains "$info" "Pages: 4" "one page per bus (4 buses, 5 scenario rows)"
@@ -44,14 +46,14 @@ contains "$p4" "Class 2" "glove class for 13.8 kV"
 
 if has_tool zbarimg && has_tool pdftoppm; then
     payload=$(qr_of "$out" 2)
-    hash=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["content_hash"])' "$TW_TMP/labels.manifest.json")
-    mpay=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["payload"])' "$TW_TMP/labels.manifest.json")
-    contains "$payload" "${hash^^}" "QR decoded by zbarimg carries the manifest's content hash (in capitals)"
+    hash=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["content_hash"])' "$TW_TMP/tagwright-registry.db.json")
+    mpay=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["payload"])' "$TW_TMP/tagwright-registry.db.json")
+    contains "$payload" "${hash^^}" "QR decoded by zbarimg carries the registry's content hash (in capitals)"
     contains "$payload" "HTTPS://RECORDS.INVALID/E2E-STUDY/E2E-MCC-1/1/" "default record link: study, equipment, revision"
-    [ "$payload" = "$mpay" ] && ok "QR payload equals the manifest's payload" || fail "QR payload '$payload' != '$mpay'"
-    # the hash is the SHA-256 of the canonical content recorded in the manifest
-    content_hash=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["content"], end="")' "$TW_TMP/labels.manifest.json" | sha256sum | cut -d" " -f1)
-    [ "$content_hash" = "$hash" ] && ok "content hash = sha256sum of the canonical form" || fail "sha256sum gives $content_hash, manifest says $hash"
+    [ "$payload" = "$mpay" ] && ok "QR payload equals the registry's payload" || fail "QR payload '$payload' != '$mpay'"
+    # the hash is the SHA-256 of the canonical content recorded in the registry
+    content_hash=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1"][0]["content"], end="")' "$TW_TMP/tagwright-registry.db.json" | sha256sum | cut -d" " -f1)
+    [ "$content_hash" = "$hash" ] && ok "content hash = sha256sum of the canonical form" || fail "sha256sum gives $content_hash, registry says $hash"
 else
     fail "zbarimg/pdftoppm not installed"
 fi
@@ -107,6 +109,6 @@ contains "$ERR" "NO-SUCH-BUS" "the unknown ID is named"
 check "no PDF for an unknown --bus" test ! -e "$TW_TMP/none.pdf"
 
 # the same input and date give the same bytes
-run labels "$TW_DATA/core/small.csv" --out "$TW_TMP/again.pdf" --manifest "$TW_TMP/again.json" --date 2026-12-01
+run labels "$TW_DATA/core/small.csv" --out "$TW_TMP/again.pdf" --manifest "$TW_TMP/again.registry" --date 2026-12-01
 check "output is byte-for-byte reproducible" cmp "$out" "$TW_TMP/again.pdf"
 finish

@@ -14,7 +14,7 @@ labels() { # labels RESULTS SITE LAYOUT OUT [more args]
     local results=$1 site=$2 layout=$3 out=$4
     shift 4
     run labels "$results" --site "$site" --layout "$layout" --out "$out" \
-        --manifest "${out%.pdf}.json" --date "$DATE" "$@"
+        --manifest "${out%.pdf}.registry" --date "$DATE" "$@"
 }
 # decode_all PDF [LAST_PAGE]: every QR payload on the pages, rendered at 300 dpi, sorted
 decode_all() {
@@ -23,8 +23,8 @@ decode_all() {
     zbarimg -q --raw --nodbus -Sdisable -Sqrcode.enable "$TW_TMP"/page-*.pgm 2>/dev/null | sort
     rm -f "$TW_TMP"/page-*.pgm
 }
-payloads_of() { # payloads_of MANIFEST: the payload of every current label, sorted
-    python3 -c 'import json,sys; print("\n".join(sorted(l["payload"] for l in json.load(open(sys.argv[1]))["labels"] if l.get("status","current")=="current")))' "$1"
+payloads_of() { # payloads_of REGISTRY: the payload of every current label, sorted
+    python3 -c 'import json,sys; print("\n".join(sorted(l["payload"] for l in json.load(open(sys.argv[1]))["labels"] if l.get("status","current")=="current")))' "$(exported "$1")"
 }
 
 # ---- tagwright layouts -----------------------------------------------------------------------
@@ -75,12 +75,12 @@ for name in $shipped; do
     contains "$info" "Pages: $(((buses + n - 1) / n))" "$name: $buses labels, $n per page"
     if has_tool zbarimg && has_tool pdftoppm && [ -n "$all_pages" ]; then
         got=$(decode_all "$out")
-        want=$(payloads_of "$TW_TMP/$name.json")
+        want=$(payloads_of "$TW_TMP/$name.registry")
         [ "$(printf '%s\n' "$got" | grep -c .)" -eq "$buses" ] \
             && ok "$name: zbarimg decodes all $buses QR codes at 300 dpi" \
             || fail "$name: zbarimg decoded $(printf '%s\n' "$got" | grep -c .) of $buses QR codes"
-        [ "$got" = "$want" ] && ok "$name: each QR carries its manifest payload" \
-            || fail "$name: decoded payloads differ from the manifest"
+        [ "$got" = "$want" ] && ok "$name: each QR carries its registry payload" \
+            || fail "$name: decoded payloads differ from the registry"
     elif has_tool zbarimg && has_tool pdftoppm; then
         got=$(decode_all "$out" 1)
         [ "$(printf '%s\n' "$got" | grep -c .)" -eq "$n" ] \
@@ -121,7 +121,7 @@ done
 lacks "$es" "Incident energy" "a Spanish label carries no English captions"
 lacks "$es" "WARNING" "nor the English signal word"
 # the content hash covers the printed language: glove class words are in the canonical form
-contains "$(cat "$TW_TMP/es.json")" "glove_class=Clase 2 (uso m" "the manifest records the Spanish value"
+contains "$(cat "$(exported "$TW_TMP/es.registry")")" "glove_class=Clase 2 (uso m" "the registry records the Spanish value"
 
 site_with language en+es "$TW_TMP/site-enes.json"
 labels "$JOBS/results.csv" "$TW_TMP/site-enes.json" 4x6 "$TW_TMP/enes.pdf" --bus QB-AER-SG11
@@ -134,8 +134,8 @@ for pair in "Incident energy:Energía incidente" "Restricted approach:Límite de
     before=${both%%"$sp"*}
     case "$before" in *"$en"*) ok "'$en' comes before '$sp'";; *) fail "'$en' not before '$sp'";; esac
 done
-h_es=$(python3 -c 'import json,sys; print([l for l in json.load(open(sys.argv[1]))["labels"] if l["equipment_id"]=="QB-AER-SG11"][0]["content_hash"])' "$TW_TMP/es.json")
-h_enes=$(python3 -c 'import json,sys; print(json.load(open(sys.argv[1]))["labels"][0]["content_hash"])' "$TW_TMP/enes.json")
+h_es=$(python3 -c 'import json,sys; print([l for l in json.load(open(sys.argv[1]))["labels"] if l["equipment_id"]=="QB-AER-SG11"][0]["content_hash"])' "$(exported "$TW_TMP/es.registry")")
+h_enes=$(python3 -c 'import json,sys; print(json.load(open(sys.argv[1]))["labels"][0]["content_hash"])' "$(exported "$TW_TMP/enes.registry")")
 [ "$h_es" != "$h_enes" ] && ok "the hash differs between languages (it covers the printed words)" \
     || fail "Spanish and bilingual labels share a hash"
 # two languages need room: a small label is refused with the region and the shortfall named

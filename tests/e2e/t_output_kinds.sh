@@ -13,7 +13,7 @@ mkdir -p "$D"
 cd "$D"
 
 # A first run makes the label record that permit and reprint need.
-run labels "$SMALL" --out posted.pdf --date 2026-10-01
+run labels "$SMALL" --out posted.pdf --manifest posted.registry --date 2026-10-01
 expect_rc 0 "labels for the record permit and reprint read"
 
 # tw_run ARGS...: as run, but a run that blocks on a FIFO fails after 60 s instead of hanging.
@@ -63,47 +63,50 @@ try() {
 }
 
 for kind in fifo link devlink dangling chardev; do
-    try labels "$kind" labels "$SMALL" --out out.x --manifest m1.json --date 2026-10-01
-    try permit "$kind" permit "$SMALL" --job "$JOB" --manifest posted.manifest.json \
+    try labels "$kind" labels "$SMALL" --out out.x --manifest m1.registry --date 2026-10-01
+    try permit "$kind" permit "$SMALL" --job "$JOB" --manifest posted.registry \
         --out out.x --date 2026-10-01
     try reprint "$kind" reprint "$SMALL" --bus E2E-MCC-1 --clearing-time 0.05 --reason test \
-        --manifest posted.manifest.json --out out.x --date 2026-10-02
-    try "diff --out" "$kind" diff "$SMALL" "$SMALL" --out out.x --manifest m2.json \
+        --manifest posted.registry --out out.x --date 2026-10-02
+    try "diff --out" "$kind" diff "$SMALL" "$SMALL" --out out.x --manifest m2.registry \
         --date 2026-10-01
     try summary "$kind" summary "$SMALL" --out out.x --date 2026-10-01
     try envelope "$kind" envelope "$SMALL" --format json --out out.x
 done
-ls .m1* m1.json m2.json >/dev/null 2>&1 && fail "a refused run left a record or a temporary file" ||
+ls .m1* m1.registry m2.registry >/dev/null 2>&1 && fail "a refused run left a record or a temporary file" ||
     ok "no refused run left a record or a temporary file"
 
-# The label record itself (--manifest) as a FIFO or a symbolic link.
+# The label record itself (--manifest): a FIFO is refused; a symbolic link is followed to the
+# file it names (docs/registry.md), which is refused when it is not a registry, and the link
+# stays a link.
 for kind in fifo link; do
-    make_target "$kind" rec.json
-    tw_run labels "$SMALL" --out new.pdf --manifest rec.json --date 2026-10-01
-    expect_rc 3 "labels --manifest naming a $kind is refused"
-    still_there "$kind" rec.json && ok "the $kind given as the record is left as it was" ||
+    make_target "$kind" rec.db
+    tw_run labels "$SMALL" --out new.pdf --manifest rec.db --date 2026-10-01
+    [ "$RC" -ne 0 ] && ok "labels --manifest naming a $kind that is no registry is refused (exit $RC)" ||
+        fail "labels --manifest naming a $kind was accepted"
+    still_there "$kind" rec.db && ok "the $kind given as the record is left as it was" ||
         fail "the $kind given as the record was replaced"
     [ ! -e new.pdf ] && ok "no PDF when the record is a $kind" || fail "new.pdf written"
-    rm -f rec.json rec.json.lock keep.txt new.pdf
+    rm -f rec.db rec.db.lock keep.txt new.pdf
 done
 
 # An output naming an existing label record (not the one the command updates) is refused.
-cp posted.manifest.json record.keep
+cp posted.registry record.keep
 for cmd in labels summary envelope; do
     case $cmd in
-    labels) tw_run labels "$SMALL" --out posted.manifest.json --manifest m3.json --date 2026-10-01 ;;
-    summary) tw_run summary "$SMALL" --out posted.manifest.json --date 2026-10-01 ;;
-    envelope) tw_run envelope "$SMALL" --format json --out posted.manifest.json ;;
+    labels) tw_run labels "$SMALL" --out posted.registry --manifest m3.registry --date 2026-10-01 ;;
+    summary) tw_run summary "$SMALL" --out posted.registry --date 2026-10-01 ;;
+    envelope) tw_run envelope "$SMALL" --format json --out posted.registry ;;
     esac
     expect_rc 3 "$cmd --out naming a label record is refused"
     contains "$ERR" "record of printed labels" "$cmd: the message says it is a label record"
-    cmp -s posted.manifest.json record.keep && ok "$cmd: the record is unchanged" ||
+    cmp -s posted.registry record.keep && ok "$cmd: the record is unchanged" ||
         fail "$cmd: the record was overwritten"
 done
 
 # A regular file is still replaced as before.
 echo old >plain.pdf
-tw_run labels "$SMALL" --out plain.pdf --manifest m4.json --date 2026-10-01
+tw_run labels "$SMALL" --out plain.pdf --manifest m4.registry --date 2026-10-01
 expect_rc 0 "an existing regular file is replaced"
 [ -f plain.pdf ] && [ ! -L plain.pdf ] && check "it is now a PDF" qpdf --check plain.pdf ||
     fail "plain.pdf is not a regular PDF"

@@ -59,29 +59,61 @@ for ((p = 1; p <= ${pages:-0}; p++)); do
 done
 
 # The QR code of every page is the posted label's: the same payload as the labels command
-# records in its manifest for the same results and site.
-run labels "$small" --out "$TW_TMP/labels.pdf" --date 2026-12-01
+# records in the registry for the same results and site.
+run labels "$small" --out "$TW_TMP/labels.pdf" --manifest "$TW_TMP/L.registry" --date 2026-12-01
 expect_rc 0 "labels for the same study"
-mpay=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1" and l["status"]=="current"][0]["payload"])' "$TW_TMP/labels.manifest.json")
+mpay=$(python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print([l for l in m["labels"] if l["equipment_id"]=="E2E-MCC-1" and l["status"]=="current"][0]["payload"])' "$(exported "$TW_TMP/L.registry")")
 for ((p = 1; p <= ${pages:-0}; p++)); do
     q=$(qr_of "$out" "$p")
     [ -n "$q" ] && [ "$q" = "$mpay" ] && ok "page $p: zbarimg decodes the label's payload" \
-        || fail "page $p: QR '$q' != manifest '$mpay'"
+        || fail "page $p: QR '$q' != registry '$mpay'"
 done
-run permit "$small" --job "$jobs/job.json" --out "$TW_TMP/with-manifest.pdf" --date 2026-12-01 \
-    --manifest "$TW_TMP/labels.manifest.json"
-expect_rc 0 "a permit naming the labels manifest"
-q=$(qr_of "$TW_TMP/with-manifest.pdf" 1)
+run permit "$small" --job "$jobs/job.json" --out "$TW_TMP/with-registry.pdf" --date 2026-12-01 \
+    --manifest "$TW_TMP/L.registry"
+expect_rc 0 "a permit naming the labels registry"
+q=$(qr_of "$TW_TMP/with-registry.pdf" 1)
 [ "$q" = "$mpay" ] && ok "with --manifest the QR is the current label's payload" || fail "QR '$q' != '$mpay'"
 
-# A label printed from other content: the permit names the next revision and warns.
+# A label posted from other content: the permit is refused, never drafted with other values.
 sed 's/,7.81,/,8.25,/' "$small" >"$TW_TMP/changed.csv"
-run labels "$TW_TMP/changed.csv" --out "$TW_TMP/old.pdf" --date 2026-11-01
+run labels "$TW_TMP/changed.csv" --out "$TW_TMP/old.pdf" --manifest "$TW_TMP/O.registry" --date 2026-11-01
 run permit "$small" --job "$jobs/job.json" --out "$TW_TMP/rev2.pdf" --date 2026-12-01 \
-    --manifest "$TW_TMP/old.manifest.json"
-expect_rc 0 "a permit against a manifest with other content"
-contains "$ERR" "reprint the label" "warns that the posted label says something else"
-contains "$(qr_of "$TW_TMP/rev2.pdf" 1)" "/2/" "the QR names the next revision"
+    --manifest "$TW_TMP/O.registry"
+expect_rc 3 "a permit against a registry whose posted label says something else is refused"
+contains "$ERR" "incident_energy: 8.3 cal/cm2 -> 7.9 cal/cm2" "the refusal shows what differs"
+contains "$ERR" "Post a label of the current study first" "the refusal says what to do"
+check "no permit written when refused" test ! -e "$TW_TMP/rev2.pdf"
+run permit "$small" --job "$jobs/job.json" --out "$TW_TMP/none.pdf" --date 2026-12-01 \
+    --manifest "$TW_TMP/L.registry" --date 2026-12-01
+expect_rc 0 "the permit of a bus whose posted label matches"
+
+# Issue 15, failure 1: after a reprint posts a higher energy, a permit from the study values is
+# refused (exit 3, nothing written), never printed under "Values as on the posted label".
+run reprint "$small" --bus E2E-MCC-1 --clearing-time 1.9 --manifest "$TW_TMP/L.registry" \
+    --out "$TW_TMP/reprinted.pdf" --date 2026-12-02
+expect_rc 0 "reprint with a longer clearing time (higher energy: no approval needed)"
+run permit "$small" --job "$jobs/job.json" --out "$TW_TMP/after-reprint.pdf" --date 2026-12-03 \
+    --manifest "$TW_TMP/L.registry"
+expect_rc 3 "a permit after a reprint posted other values is refused"
+contains "$ERR" "refused" "the permit says refused"
+check "no permit written after the reprint" test ! -e "$TW_TMP/after-reprint.pdf"
+# Issue 15, failure 2: printing the study values again would lower the posted hazard: refused
+# without an approver, and the reprinted revision stays current.
+run labels "$small" --bus E2E-MCC-1 --out "$TW_TMP/back.pdf" --manifest "$TW_TMP/L.registry" \
+    --date 2026-12-03
+expect_rc 3 "labels --bus that would lower the posted label is refused"
+contains "$ERR" "signal word DANGER -> WARNING" "the refusal names DANGER -> WARNING"
+check "no label written" test ! -e "$TW_TMP/back.pdf"
+run labels "$small" --bus E2E-MCC-1 --out "$TW_TMP/back.pdf" --manifest "$TW_TMP/L.registry" \
+    --date 2026-12-03 --approved-by "P. Engineer" --reason "relay restored to study settings"
+expect_rc 0 "with --approved-by and --reason the lowered label is printed"
+run permit "$small" --job "$jobs/job.json" --out "$TW_TMP/after-approval.pdf" --date 2026-12-03 \
+    --manifest "$TW_TMP/L.registry"
+expect_rc 0 "the permit matches the posted label again"
+q=$(qr_of "$TW_TMP/after-approval.pdf" 1)
+contains "$q" "/3/" "the permit's QR names the posted revision 3"
+run verify --manifest "$TW_TMP/L.registry" "$q"
+contains "$OUT" "approved by P. Engineer: relay restored to study settings" "verify shows the approval"
 
 # Same input and date, same bytes.
 run permit "$small" --job "$jobs/job.json" --out "$TW_TMP/again.pdf" --date 2026-12-01

@@ -10,14 +10,14 @@ contains "$ERR" "E2E-NOAFB-1" "the error names the equipment"
 contains "$ERR" "arc_flash_boundary" "the error names the field"
 check "the earlier output is intact" grep -q "earlier output" "$out"
 check "no temporary files left" test -z "$(find "$TW_TMP" -name '.labels.pdf.*')"
-check "no manifest written" test ! -e "$TW_TMP/labels.manifest.json"
+check "no registry written" test ! -e "$TW_TMP/tagwright-registry.db"
 
 run labels "$TW_DATA/core/missing-boundary.csv" --out "$TW_TMP/draft.pdf" --draft --date 2026-12-01
 expect_rc 0 "--draft prints watermarked drafts"
 contains "$(pdftotext "$TW_TMP/draft.pdf" - 2>/dev/null)" "NOT FOR POSTING" "the draft is watermarked"
 check "qpdf --check passes on drafts" qpdf --check "$TW_TMP/draft.pdf"
-if [ -e "$TW_TMP/draft.manifest.json" ]; then
-    lacks "$(cat "$TW_TMP/draft.manifest.json")" "E2E-NOAFB-1" "drafts are not recorded as posted labels"
+if [ -e "$TW_TMP/tagwright-registry.db" ]; then
+    lacks "$(cat "$(exported "$TW_TMP/tagwright-registry.db")")" "E2E-NOAFB-1" "drafts are not recorded as posted labels"
 fi
 
 run labels "$TW_DATA/core/small.csv" --out "$TW_DATA/core/small.csv"

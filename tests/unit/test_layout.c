@@ -160,11 +160,26 @@ static void layout_should_refuse_a_grid_larger_than_the_page(void **state)
                  "$.grid.columns", "whole number");
 }
 
+/* The first error message about bad.json at line `line`, after a load that must fail. */
+static void expect_line_error(const char *json, long line, const char *want)
+{
+    tw_diags d;
+    tw_diags_init(&d);
+    tw_layout l;
+    assert_int_equal(tw_layout_load_mem("bad.json", json, strlen(json), &l, &d), -1);
+    assert_true(d.count >= 1);
+    assert_int_equal(d.items[0].line, line);
+    assert_non_null(strstr(d.items[0].message, want));
+    tw_diags_free(&d);
+}
+
 static void layout_should_refuse_text_that_is_not_json(void **state)
 {
     (void)state;
-    expect_error("{\"units\":\"in\",", "$", "not a JSON object");
-    expect_error("[1,2]", "$", "not a JSON object");
+    expect_line_error("{\"units\":\"in\",", 1, "not valid JSON near byte 13");
+    expect_line_error("[1,2]", 1, "expected a layout object at the top, got an array");
+    expect_line_error("{}\n}garbage", 2, "unexpected data after the JSON value near byte 3");
+    expect_error("{\"units\":\"in\",\"units\":\"mm\"}", "units", "key given twice");
 }
 
 static void layout_should_warn_about_unknown_keys_and_still_load(void **state)

@@ -13,6 +13,7 @@
 
 #include "rules/tw_label.h"
 #include "write/tw_label_pdf.h"
+#include "write/tw_pdf_doc.h"
 #include "write/tw_qr.h"
 #include "base/tw_util.h"
 
@@ -553,6 +554,20 @@ static void bad_document_date_should_be_refused(void **state)
     assert_non_null(strstr(err, "YYYY-MM-DD"));
 }
 
+/* A full disk read "libharu error 0x1066": the message says disk full and names the output
+ * (/dev/full fails every write with ENOSPC). */
+static void a_full_disk_should_be_named_with_the_file_being_written(void **state)
+{
+    (void)state;
+    tw_pdf_doc d;
+    char err[512] = "";
+    assert_int_equal(tw_pdf_doc_open(&d, "2024-08-01", err, sizeof err), 0);
+    assert_non_null(tw_pdf_doc_page(&d, 288, 432));
+    assert_int_equal(tw_pdf_doc_write(&d, "/dev/full", "labels.pdf", err, sizeof err), -1);
+    assert_string_equal(err, "disk full while writing labels.pdf");
+    tw_pdf_doc_close(&d);
+}
+
 /* Two 4 x 6 in labels side by side on a US Letter sheet (8.5 x 11 in = 612 x 792 pt). */
 static void sheet_layout_should_put_two_labels_on_each_page(void **state)
 {
@@ -646,6 +661,7 @@ int main(void)
 {
     const struct CMUnitTest tests[] = {
         cmocka_unit_test(label_doc_should_save_three_labels_as_a_pdf),
+        cmocka_unit_test(a_full_disk_should_be_named_with_the_file_being_written),
         cmocka_unit_test(saved_pdf_should_pass_qpdf_check),
         cmocka_unit_test(pdfinfo_should_report_three_4_by_6_inch_pages),
         cmocka_unit_test(warning_label_text_should_carry_the_required_values),

@@ -9,6 +9,7 @@
 #include "rules/tw_scenario.h"
 #include "read/tw_site.h"
 #include "base/tw_util.h"
+#include "read/tw_json.h"
 
 /* Read CSV text, group it and derive the first bus's label. Returns tw_label_derive's result
  * (or -2 when reading failed); *errors receives every error finding counted. */
@@ -153,7 +154,7 @@ static void json_text_with_a_nul_should_be_refused_by_every_reader(void **state)
     tw_diags d;
     tw_diags_init(&d);
     tw_results r;
-    assert_int_equal(tw_results_read_json("nul.json", raw, sizeof raw - 1, &r, &d), 0);
+    assert_int_equal(tw_results_read_json("nul.json", raw, sizeof raw - 1, &r, &d), -1);
     assert_int_equal(r.count, 0);
     assert_int_equal(d.errors, 1);
     tw_results_free(&r);

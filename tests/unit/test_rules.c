@@ -216,6 +216,81 @@ static void signal_word_should_be_danger_above_the_sites_highest_level(void **st
     tw_site_free(&site);
 }
 
+/* ---- one definition per trade rule -------------------------------------------------------- */
+
+/* NFPA 70E 130.5(G) (from memory): reviewed at intervals not exceeding 5 years. */
+static void review_should_be_due_5_years_after_the_study_and_never_late(void **state)
+{
+    (void)state;
+    tw_date d, due;
+    assert_int_equal(tw_date_parse("2026-03-15", &d), 0);
+    due = tw_review_due_date(d);
+    assert_int_equal(due.year, 2031);
+    assert_int_equal(due.month, 3);
+    assert_int_equal(due.day, 15);
+    assert_int_equal(tw_date_parse("2024-02-29", &d), 0);
+    due = tw_review_due_date(d); /* 2029 has no 29 February: the day before, never after */
+    assert_int_equal(due.month, 2);
+    assert_int_equal(due.day, 28);
+}
+
+/* NEC 110.16(B) (2020 edition, from memory): 1200 A; a site may only lower it. */
+static void service_label_threshold_should_be_1200a_unless_the_site_lowers_it(void **state)
+{
+    (void)state;
+    tw_site site;
+    assert_int_equal(tw_site_defaults(&site), 0);
+    assert_near(tw_service_label_min_a(NULL), 1200, 0);
+    assert_near(tw_service_label_min_a(&site), 1200, 0);
+    tw_diags d;
+    tw_diags_init(&d);
+    site.service_label_min_a = 1000; /* NEC 2023 (from memory) */
+    assert_near(tw_service_label_min_a(&site), 1000, 0);
+    assert_int_equal(tw_site_check_rules(&site, "site.json", &d), 0);
+    site.service_label_min_a = 1200.5;
+    assert_int_equal(tw_site_check_rules(&site, "site.json", &d), -1);
+    assert_string_equal(d.items[0].path, "service_label_min_a");
+    tw_diags_free(&d);
+    tw_site_free(&site);
+}
+
+/* Common practice: DANGER above 40 cal/cm2 unless the site sets its own threshold. */
+static void danger_threshold_should_be_40_unless_the_site_sets_one(void **state)
+{
+    (void)state;
+    tw_site site;
+    assert_int_equal(tw_site_defaults(&site), 0);
+    assert_near(tw_danger_above_cal(NULL), 40, 0);
+    assert_near(tw_danger_above_cal(&site), 40, 0);
+    site.danger_above_cal_cm2 = 25;
+    assert_near(tw_danger_above_cal(&site), 25, 0);
+    tw_site_free(&site);
+}
+
+/* NFPA 70E Table 130.7(C)(15)(c): categories 1 to 4, whole numbers. */
+static void ppe_category_should_be_a_whole_number_from_1_to_4(void **state)
+{
+    (void)state;
+    assert_true(tw_ppe_category_valid(1) && tw_ppe_category_valid(4));
+    assert_false(tw_ppe_category_valid(0) || tw_ppe_category_valid(5));
+    assert_false(tw_ppe_category_valid(2.5) || tw_ppe_category_valid(NAN));
+}
+
+static void row_rating_should_be_the_energy_else_the_categorys_minimum(void **state)
+{
+    (void)state;
+    tw_row r = {0};
+    assert_true(isnan(tw_row_rating(&r)));
+    r.present = 1u << TW_F_PPE_CATEGORY;
+    r.num[TW_F_PPE_CATEGORY] = 3;
+    assert_near(tw_row_rating(&r), 25, 0); /* NFPA 70E Table 130.7(C)(15)(c): category 3 */
+    r.present |= 1u << TW_F_INCIDENT_ENERGY_CAL;
+    r.num[TW_F_INCIDENT_ENERGY_CAL] = 7.04;
+    assert_near(tw_row_rating(&r), 7.04, 0); /* not rounded: the worst case compares these */
+    r.num[TW_F_INCIDENT_ENERGY_CAL] = -1;
+    assert_near(tw_row_rating(&r), 25, 0);
+}
+
 int main(void)
 {
     const struct CMUnitTest tests[] = {
@@ -234,6 +309,11 @@ int main(void)
         cmocka_unit_test(length_should_not_overrun_a_small_buffer),
         cmocka_unit_test(signal_word_should_be_warning_at_40_and_danger_at_40_1),
         cmocka_unit_test(signal_word_should_be_danger_above_the_sites_highest_level),
+        cmocka_unit_test(review_should_be_due_5_years_after_the_study_and_never_late),
+        cmocka_unit_test(service_label_threshold_should_be_1200a_unless_the_site_lowers_it),
+        cmocka_unit_test(danger_threshold_should_be_40_unless_the_site_sets_one),
+        cmocka_unit_test(ppe_category_should_be_a_whole_number_from_1_to_4),
+        cmocka_unit_test(row_rating_should_be_the_energy_else_the_categorys_minimum),
     };
     return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -4,6 +4,7 @@
 
 #include "write/tw_qr.h"
 #include "read/tw_site.h"
+#include "rules/tw_rules.h"
 
 typedef struct {
     tw_site site;
@@ -57,10 +58,12 @@ static void defaults_should_match_the_documented_values(void **state)
     assert_string_equal(s->ppe_levels[3].name, "AR-40");
     assert_near(s->ppe_levels[3].arc_rating_cal_cm2, 40, 0);
     assert_int_equal(s->show, TW_SHOW_INCIDENT_ENERGY);
-    assert_near(s->danger_above_cal_cm2, 40, 0);        /* common practice */
+    assert_near(s->danger_above_cal_cm2, 0, 0);         /* not set: the trade rule's */
+    assert_near(tw_danger_above_cal(s), 40, 0);         /* common practice */
     assert_int_equal(s->units, TW_UNITS_IMPERIAL_METRIC);
     assert_int_equal(s->caution_count, 0);
-    assert_near(s->service_label_min_a, 1200, 0);       /* NEC 110.16(B), 2020 edition */
+    assert_near(s->service_label_min_a, 0, 0);          /* not set: the code's */
+    assert_near(tw_service_label_min_a(s), 1200, 0);    /* NEC 110.16(B), 2020 edition */
     assert_string_equal(s->language, "en");
     assert_null(s->layout);
     assert_near(tw_site_max_rating(s), 40, 0);
@@ -183,9 +186,9 @@ static void empty_level_list_should_be_an_error(void **state)
 static void service_threshold_above_1200a_should_be_an_error(void **state)
 {
     fixture *f = *state;
-    assert_int_equal(load(f, "{\"service_label_min_a\": 1600}"), -1);
+    assert_int_equal(load(f, "{\"service_label_min_a\": 1600}"), 0); /* the shape is right */
+    assert_int_equal(tw_site_check_rules(&f->site, "site.json", &f->d), -1);
     assert_non_null(finding_at(f, "service_label_min_a"));
-    assert_near(f->site.service_label_min_a, 1200, 0);
 }
 
 static void repeated_key_should_be_an_error(void **state)

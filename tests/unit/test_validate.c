@@ -226,6 +226,21 @@ static void a_voltage_that_differs_between_scenarios_should_be_an_error(void **s
     fixture_free(&f);
 }
 
+static void scenarios_of_different_study_revisions_should_be_an_error(void **state)
+{
+    (void)state;
+    fixture f;
+    check_csv(&f, HEAD "A,max,2025-06-30,480,8,457.2,1219.2,\n"
+                       "A,min,2021-03-10,480,9,457.2,1300,\n"
+                       "B,max,2025-06-30,480,8,457.2,1219.2,\n"
+                       "B,min,2025-06-30,480,9,457.2,1300,\n");
+    assert_int_equal(f.errors, 1); /* bus B's rows agree */
+    const tw_diag *g = find_diag(&f, "'2021-03-10' here, '2025-06-30' at line 2");
+    assert_non_null(g);
+    assert_int_equal(g->line, 3);
+    fixture_free(&f);
+}
+
 static void large_service_equipment_should_need_fault_current_and_clearing_time(void **state)
 {
     (void)state;
@@ -273,8 +288,9 @@ static void a_row_without_an_id_should_be_reported_and_left_out_of_the_buses(voi
     (void)state;
     fixture f;
     check_csv(&f, HEAD ",max,2025-06-30,480,8,457.2,1219.2,\n");
-    assert_int_equal(f.errors, 1);
+    assert_int_equal(f.errors, 2); /* the missing ID, and a file without buses */
     assert_string_equal(f.d.items[0].field, "equipment_id");
+    assert_non_null(strstr(f.d.items[1].message, "no buses"));
     assert_int_equal(f.s.count, 0);
     fixture_free(&f);
 }
@@ -410,6 +426,7 @@ int main(void)
         cmocka_unit_test(a_missing_or_malformed_study_date_should_be_an_error),
         cmocka_unit_test(a_voltage_outside_the_tables_should_be_an_error),
         cmocka_unit_test(a_voltage_that_differs_between_scenarios_should_be_an_error),
+        cmocka_unit_test(scenarios_of_different_study_revisions_should_be_an_error),
         cmocka_unit_test(large_service_equipment_should_need_fault_current_and_clearing_time),
         cmocka_unit_test(an_unknown_electrode_configuration_should_be_a_warning),
         cmocka_unit_test(a_row_without_an_id_should_be_reported_and_left_out_of_the_buses),
