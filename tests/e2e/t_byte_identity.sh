@@ -53,8 +53,11 @@ produce "the permit for one job, beside the registry" permit "$jobs/results.csv"
     --out "$out/permit.pdf"
 produce "permits for a batch of jobs" permit "$jobs/results.csv" --job "$jobs/jobs.json" \
     --site "$jobs/site.json" --out "$out/permits"
-produce "the study summary" summary "$jobs/results.csv" --site "$jobs/site.json" \
-    --out "$out/summary.pdf"
+# The summary names the results file as given: a relative name keeps its bytes the same
+# wherever the project is checked out.
+pushd "$jobs" >/dev/null
+produce "the study summary" summary results.csv --site site.json --out "$out/summary.pdf"
+popd >/dev/null
 
 (cd "$out" && find . -name '*.pdf' | LC_ALL=C sort | xargs sha256sum) >"$TW_TMP/now.sha256"
 if [ "${TW_IDENTITY_UPDATE:-}" = 1 ]; then
