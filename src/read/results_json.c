@@ -194,6 +194,7 @@ static void read_object(json_reader *jr, tw_row *r, const cJSON *obj)
                 read_value(jr, r, c, v);
         }
     }
+    free(seen);
 }
 
 /* Study-level values fill what a bus leaves unset. A default that could not be read was
